@@ -1,0 +1,85 @@
+"""One home for meshprops' exceptions.
+
+Every error is a :class:`MeshpropsError` and also a built-in type, carries the
+values it complains about as fields, and renders as one line naming the file
+(or option) and the problem. The CLI turns them into one stderr line and an exit
+code in one place (:func:`meshprops.cli.main`).
+"""
+
+from __future__ import annotations
+
+# Exit codes of the command-line tool (documented in the README).
+EXIT_OK = 0
+EXIT_INVALID = 1  # a check or validity failure: the mesh was read but is not sound
+EXIT_USAGE = 2  # bad usage or unreadable input
+
+
+class MeshpropsError(Exception):
+    """Base class of every error meshprops raises on purpose."""
+
+    exit_code = EXIT_USAGE
+
+    def __init__(self, message: str, *, source: str | None = None) -> None:
+        self.source = source
+        self.problem = message
+        super().__init__(f"{source}: {message}" if source else message)
+
+
+class MeshFileError(MeshpropsError, ValueError):
+    """A mesh file is missing, unreadable, truncated or malformed.
+
+    ``line`` (text formats) or ``offset`` (binary formats) locates the problem
+    when known.
+    """
+
+    def __init__(
+        self,
+        source: str,
+        message: str,
+        *,
+        line: int | None = None,
+        offset: int | None = None,
+    ) -> None:
+        self.line = line
+        self.offset = offset
+        where = f"line {line}: " if line is not None else (f"byte {offset}: " if offset is not None else "")
+        super().__init__(where + message, source=source)
+
+
+class UnitError(MeshpropsError, ValueError):
+    """A length or mass unit that meshprops does not know."""
+
+    def __init__(self, unit: str, known: tuple[str, ...], *, source: str | None = None) -> None:
+        self.unit = unit
+        self.known = known
+        super().__init__(f"unknown unit {unit!r}; expected one of {', '.join(known)}", source=source)
+
+
+class InputValueError(MeshpropsError, ValueError):
+    """A numeric input (density, point, spin vector, ...) with a bad value."""
+
+    def __init__(self, name: str, expected: str, found: object, *, source: str | None = None) -> None:
+        self.name = name
+        self.expected = expected
+        self.found = found
+        super().__init__(f"{name}: expected {expected}, got {found!r}", source=source)
+
+
+class InvalidMeshError(MeshpropsError, ValueError):
+    """The mesh was read but failed validation; its numbers would not be sound.
+
+    ``findings`` holds the validation findings (see :mod:`meshprops.checks`).
+    """
+
+    exit_code = EXIT_INVALID
+
+    def __init__(self, source: str, message: str, findings: tuple = ()) -> None:
+        self.findings = findings
+        super().__init__(message, source=source)
+
+
+class PhysicsError(MeshpropsError, ValueError):
+    """Mass properties that no physical body can have (for example a negative
+    principal moment or a violated triangle inequality)."""
+
+    exit_code = EXIT_INVALID
