@@ -7,6 +7,7 @@ unreadable input. Errors are one line on stderr, never a traceback.
 
 from __future__ import annotations
 
+import functools
 import sys
 from pathlib import Path
 from typing import Annotated, Optional
@@ -34,6 +35,23 @@ def _say(message: str) -> None:
     print(f"meshprops: {message}", file=sys.stderr)
 
 
+def one_line_errors(function):
+    """Decorate every command with this: a MeshpropsError becomes one stderr line and its exit code.
+
+    Done per command (not only in :func:`main`) so that typer's CliRunner sees the same behaviour.
+    """
+
+    @functools.wraps(function)
+    def wrapper(*args, **kwargs):
+        try:
+            return function(*args, **kwargs)
+        except MeshpropsError as error:
+            _say(f"error: {error}")
+            raise typer.Exit(error.exit_code) from None
+
+    return wrapper
+
+
 def _angular_velocity(spin_text, rpm, axis_text):
     from .body import parse_vector
     from .units import rpm_to_rad_per_s
@@ -58,6 +76,7 @@ def _angular_velocity(spin_text, rpm, axis_text):
 
 
 @app.command()
+@one_line_errors
 def measure(
     files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY); one body each.", show_default=False)],
     units: Annotated[str, typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft.")] = "mm",
@@ -111,7 +130,8 @@ def main(argv: list[str] | None = None) -> None:
     """Console entry point: run the app and turn every error into one line and an exit code."""
     command = typer.main.get_command(app)
     try:
-        command.main(args=argv if argv is not None else sys.argv[1:], prog_name="meshprops", standalone_mode=False)
+        # Without standalone mode the parser returns the command's exit code instead of exiting.
+        status = command.main(args=argv if argv is not None else sys.argv[1:], prog_name="meshprops", standalone_mode=False)
     except MeshpropsError as error:
         _say(f"error: {error}")
         sys.exit(error.exit_code)
@@ -131,4 +151,4 @@ def main(argv: list[str] | None = None) -> None:
         sys.exit(EXIT_USAGE)
     except BrokenPipeError:
         sys.exit(EXIT_OK)
-    sys.exit(EXIT_OK)
+    sys.exit(status if isinstance(status, int) else EXIT_OK)

@@ -1,0 +1,44 @@
+"""Every JSON document meshprops prints validates against its published schema."""
+
+import json
+from pathlib import Path
+
+import jsonschema
+import pytest
+from typer.testing import CliRunner
+
+from meshprops.cli import app
+
+ROOT = Path(__file__).resolve().parent.parent
+SCHEMA = json.loads((ROOT / "meshprops" / "schema" / "measure.schema.json").read_text())
+SAMPLES = sorted(p for p in (ROOT / "sample_meshes").iterdir() if p.suffix in (".stl", ".obj", ".ply"))
+
+
+def test_there_are_samples_in_every_format():
+    assert {p.suffix for p in SAMPLES} == {".stl", ".obj", ".ply"}
+
+
+@pytest.mark.parametrize("sample", SAMPLES, ids=lambda p: p.name)
+def test_sample_json_validates(sample):
+    result = CliRunner().invoke(
+        app, ["measure", str(sample), "--json", "--density", "2700", "--about", "0,0,10", "--spin", "0,0,100"]
+    )
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    jsonschema.validate(doc, SCHEMA)
+    body = doc["bodies"][0]
+    assert body["valid"] is True and body["mass"] > 0
+    assert set(body["spin"]) >= {"angular_momentum_about_com", "kinetic_energy"}
+
+
+def test_invalid_body_validates_with_null_numbers(tmp_path):
+    path = tmp_path / "open.obj"
+    path.write_text("v 0 0 0\nv 1 0 0\nv 0 1 0\nv 0 0 1\nf 1 3 2\nf 1 2 4\nf 2 3 4\n")
+    result = CliRunner().invoke(app, ["measure", str(path), "--json", "--density", "1000"])
+    assert result.exit_code == 1
+    doc = json.loads(result.stdout)
+    jsonschema.validate(doc, SCHEMA)
+    body = doc["bodies"][0]
+    assert body["valid"] is False
+    assert body["mass"] is None and body["inertia_about_com"] is None
+    assert any(f["code"] == "open_edges" and f["severity"] == "error" for f in body["findings"])
