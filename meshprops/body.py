@@ -97,6 +97,7 @@ def measure_mesh(
     com_velocity=None,
     name: str | None = None,
     on_invalid: str = "raise",
+    repair: bool = False,
 ) -> BodyMeasurement:
     """Validate ``mesh`` and compute its mass properties.
 
@@ -115,13 +116,26 @@ def measure_mesh(
         ``"raise"`` (default): raise :class:`InvalidMeshError` when validation
         finds an error. ``"report"``: return a measurement with ``valid`` false
         and no numbers, the findings saying why.
+    repair
+        Apply the safe repairs of :func:`meshprops.repair.repair_mesh` first
+        (reorient winding, flip inside-out shells and voids, drop degenerate and
+        duplicate faces), each reported as a ``repaired_*`` warning finding; the
+        repaired mesh is then validated and measured. Holes are never filled.
     """
     if on_invalid not in ("raise", "report"):
         raise InputValueError("on_invalid", "'raise' or 'report'", on_invalid)
     density_assumed = density is None
     density = DEFAULT_DENSITY if density is None else check_density(density, source=mesh.source)
-    moments = integrate_chunks(mesh.triangle_chunks())
-    report = validate(mesh, moments)
+    repaired = None
+    if repair:
+        from .repair import repair_mesh
+
+        repaired = repair_mesh(mesh)
+    measured = repaired.mesh if repaired is not None else mesh
+    moments = integrate_chunks(measured.triangle_chunks())
+    report = validate(measured, moments)
+    if repaired is not None:  # locate every finding in the file as read
+        report = replace(report, findings=repaired.findings + repaired.remap(report.findings))
     base = BodyMeasurement(
         source=mesh.source,
         name=name,
@@ -179,6 +193,7 @@ def measure_file(
     com_velocity=None,
     name: str | None = None,
     on_invalid: str = "raise",
+    repair: bool = False,
 ) -> BodyMeasurement:
     """Load a mesh file and measure it; see :func:`measure_mesh`.
 
@@ -193,6 +208,7 @@ def measure_file(
         com_velocity=com_velocity,
         name=name,
         on_invalid=on_invalid,
+        repair=repair,
     )
 
 
@@ -205,6 +221,7 @@ def measure_files(
     angular_velocity=None,
     com_velocity=None,
     on_invalid: str = "report",
+    repair: bool = False,
 ) -> list[BodyMeasurement]:
     """Measure several mesh files with the same settings (one body each).
 
@@ -221,6 +238,7 @@ def measure_files(
             angular_velocity=angular_velocity,
             com_velocity=com_velocity,
             on_invalid=on_invalid,
+            repair=repair,
         )
         for mesh in meshes
     ]

@@ -15,6 +15,7 @@ import numpy as np
 from . import __version__
 from .body import BodyMeasurement
 from .checks import Finding
+from .errors import OutputFileError
 from .units import SI_UNITS
 
 SCHEMA_NAME = "meshprops.measure"
@@ -82,6 +83,9 @@ def body_to_dict(body: BodyMeasurement) -> dict:
                 "faces": body.face_count,
                 "vertices": validation.vertex_count if validation else None,
                 "edges": validation.edge_count if validation else None,
+                "shells": validation.extra.get("shells") if validation else None,
+                "voids": validation.extra.get("voids") if validation else None,
+                "holes": validation.extra.get("holes") if validation else None,
             },
             "density": body.density,
             "density_assumed": body.density_assumed,
@@ -155,14 +159,19 @@ def to_json(doc: dict) -> str:
 def write_atomically(path: str, text: str) -> None:
     """Write ``text`` to ``path`` via a temporary file and a rename: never half-written."""
     directory = os.path.dirname(os.path.abspath(path))
-    handle, temporary = tempfile.mkstemp(prefix=".meshprops-", dir=directory)
+    try:
+        handle, temporary = tempfile.mkstemp(prefix=".meshprops-", dir=directory)
+    except OSError as exc:  # missing or read-only directory: one clear line, not a traceback
+        raise OutputFileError(path, exc.strerror or str(exc)) from None
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
             stream.write(text)
         os.replace(temporary, path)
-    except BaseException:
+    except BaseException as exc:
         if os.path.exists(temporary):
             os.unlink(temporary)
+        if isinstance(exc, OSError) and not isinstance(exc, OutputFileError):
+            raise OutputFileError(path, exc.strerror or str(exc)) from None
         raise
 
 
@@ -235,4 +244,80 @@ def render_table(doc: dict) -> str:
         lines.append("")
     lines.append("Units SI. Inertia in tensor convention about the centre of mass unless stated.")
     lines.extend(f"CAUTION: {text}" for text in doc.get("cautions", []))
+    return "\n".join(lines) + "\n"
+
+
+# ---------------------------------------------------------------------------- meshprops check
+
+CHECK_SCHEMA_NAME = "meshprops.check"
+CHECK_SCHEMA_VERSION = 1
+
+
+def check_to_dict(result) -> dict:
+    """One checked file (:class:`meshprops.checks.CheckResult`) as plain JSON data."""
+    report = result.report
+    return {
+        "source": result.source,
+        "valid": report.valid,
+        "errors": len(report.errors),
+        "warnings": len(report.warnings),
+        "findings": [finding_to_dict(f) for f in report.findings],
+        "mesh": {
+            "format": result.file_format,
+            "length_unit": result.length_unit,
+            "faces": result.face_count,
+            "vertices": report.vertex_count,
+            "edges": report.edge_count,
+            "shells": report.extra.get("shells"),
+            "voids": report.extra.get("voids"),
+            "holes": report.extra.get("holes"),
+            "self_intersections_checked": report.extra.get("self_intersections_checked"),
+        },
+    }
+
+
+def check_document(results, *, input_length_unit: str) -> dict:
+    """The JSON document of ``meshprops check``: one entry per file plus totals."""
+    files = [check_to_dict(result) for result in results]
+    return {
+        "schema": CHECK_SCHEMA_NAME,
+        "schema_version": CHECK_SCHEMA_VERSION,
+        "meshprops_version": __version__,
+        "units": dict(SI_UNITS, input_length_unit=input_length_unit),
+        "files": files,
+        "summary": {
+            "files": len(files),
+            "valid": sum(1 for f in files if f["valid"]),
+            "errors": sum(f["errors"] for f in files),
+            "warnings": sum(f["warnings"] for f in files),
+        },
+    }
+
+
+def render_check_table(doc: dict) -> str:
+    """A plain-text table of a check document: one row per finding, the first faces it concerns."""
+    lines: list[str] = []
+    for entry in doc["files"]:
+        mesh = entry["mesh"]
+        state = "valid" if entry["valid"] else "INVALID"
+        lines.append(
+            f"{entry['source']}  [{state}]  {mesh['faces']} faces, {mesh['vertices']} vertices, "
+            f"{mesh['shells']} shell(s), read in {mesh['length_unit']}"
+        )
+        if not entry["findings"]:
+            lines.append("  no findings")
+        else:
+            lines.append(f"  {'severity':<8}  {'code':<30}  {'count':>8}  {'faces':<24}  message")
+            for finding in entry["findings"]:
+                faces = ",".join(str(place["face"]) for place in finding["where"]) or "-"
+                lines.append(
+                    f"  {finding['severity']:<8}  {finding['code']:<30}  {finding['count']:>8}  {faces:<24}  "
+                    f"{finding['message']}"
+                )
+        lines.append("")
+    summary = doc["summary"]
+    lines.append(
+        f"{summary['files']} file(s): {summary['valid']} valid, {summary['errors']} error finding(s), "
+        f"{summary['warnings']} warning finding(s)"
+    )
     return "\n".join(lines) + "\n"

@@ -78,8 +78,40 @@ class InvalidMeshError(MeshpropsError, ValueError):
         super().__init__(message, source=source)
 
 
+class OutputFileError(MeshpropsError, OSError):
+    """A report file (``--output``) that cannot be written; nothing was left half-written."""
+
+    def __init__(self, path: str, reason: str) -> None:
+        self.path = path
+        super().__init__(f"cannot write output: {reason}", source=path)
+
+
 class PhysicsError(MeshpropsError, ValueError):
     """Mass properties that no physical body can have (for example a negative
     principal moment or a violated triangle inequality)."""
+
+    exit_code = EXIT_INVALID
+
+
+class ManifestError(MeshpropsError, ValueError):
+    """An assembly manifest with a syntax error, an unknown key, a missing mesh or a bad value.
+
+    ``key`` is the dotted path of the offending key (``body[2].material``;
+    indices count from 0 in file order), ``line`` the 1-based line where it was
+    found in the manifest text (best effort: TOML parsers do not report key
+    positions, so the line is searched for), ``None`` when not found.
+    """
+
+    def __init__(self, manifest: str, key: str | None, message: str, *, line: int | None = None) -> None:
+        self.manifest = manifest
+        self.key = key
+        self.line = line
+        where = f"line {line}: " if line is not None else ""
+        super().__init__(where + (f"{key}: " if key else "") + message, source=manifest)
+
+
+class SimulatorExportError(MeshpropsError, ValueError):
+    """Mass properties that a simulator would reject (not positive definite, triangle
+    inequality violated, or a body without numbers); nothing is printed."""
 
     exit_code = EXIT_INVALID

@@ -1,0 +1,127 @@
+"""Shared fixtures: writing one mesh in every supported file format, comparing
+tensors, random rotations.
+
+Fixtures return plain functions so tests stay explicit about what they build.
+The meshes themselves come from :mod:`meshprops.shapes` (closed, outward).
+"""
+
+from __future__ import annotations
+
+import os
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from meshprops import shapes, writers
+
+#: Every file format the loaders read, as written by :func:`write_mesh_file`.
+MESH_FORMATS = ("stl-binary", "stl-ascii", "obj", "ply-ascii", "ply-binary", "ply-binary-big-endian")
+
+_EXTENSION = {
+    "stl-binary": ".stl",
+    "stl-ascii": ".stl",
+    "obj": ".obj",
+    "ply-ascii": ".ply",
+    "ply-binary": ".ply",
+    "ply-binary-big-endian": ".ply",
+}
+
+
+def write_ply_big_endian(path: str | os.PathLike, vertices, faces) -> None:
+    """Binary big-endian PLY (float64 x y z, uchar/int32 face lists); meshprops' writer only does little-endian."""
+    vertices = np.asarray(vertices, dtype=np.float64)
+    faces = np.asarray(faces, dtype=np.int64)
+    header = (
+        "ply\nformat binary_big_endian 1.0\n"
+        f"element vertex {len(vertices)}\nproperty double x\nproperty double y\nproperty double z\n"
+        f"element face {len(faces)}\nproperty list uchar int vertex_indices\nend_header\n"
+    )
+    table = np.zeros(len(faces), dtype=[("n", "u1"), ("i", ">i4", (3,))])
+    table["n"] = 3
+    table["i"] = faces
+    with open(path, "wb") as handle:
+        handle.write(header.encode("ascii"))
+        handle.write(vertices.astype(">f8").tobytes())
+        handle.write(table.tobytes())
+
+
+def write_mesh_file(directory: str | os.PathLike, stem: str, vertices, faces, file_format: str) -> Path:
+    """Write the indexed mesh ``(vertices, faces)`` as ``file_format`` into ``directory``; return the path."""
+    path = Path(directory) / f"{stem}{_EXTENSION[file_format]}"
+    if file_format == "stl-binary":
+        writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
+    elif file_format == "stl-ascii":
+        writers.write_ascii_stl(path, shapes.triangles_of(vertices, faces))
+    elif file_format == "obj":
+        writers.write_obj(path, vertices, faces)
+    elif file_format == "ply-ascii":
+        writers.write_ply(path, vertices, faces, binary=False)
+    elif file_format == "ply-binary":
+        writers.write_ply(path, vertices, faces, binary=True)
+    elif file_format == "ply-binary-big-endian":
+        write_ply_big_endian(path, vertices, faces)
+    else:  # pragma: no cover - a typo in a test
+        raise ValueError(f"unknown test format {file_format!r}")
+    return path
+
+
+def assert_tensor_close(actual, expected, rtol: float, what: str = "") -> None:
+    """Element-wise ``|actual - expected| <= rtol * max|expected|`` (zeros compared at that scale too)."""
+    actual = np.asarray(actual, dtype=np.float64)
+    expected = np.asarray(expected, dtype=np.float64)
+    scale = max(float(np.abs(expected).max()), np.finfo(float).tiny)
+    np.testing.assert_allclose(actual, expected, rtol=0.0, atol=rtol * scale, err_msg=what)
+
+
+def rotation_from_quaternion(quaternion) -> np.ndarray:
+    """Proper rotation matrix of a (not necessarily unit) quaternion ``(w, x, y, z)``."""
+    w, x, y, z = np.asarray(quaternion, dtype=np.float64) / np.linalg.norm(quaternion)
+    return np.array(
+        [
+            [1 - 2 * (y * y + z * z), 2 * (x * y - z * w), 2 * (x * z + y * w)],
+            [2 * (x * y + z * w), 1 - 2 * (x * x + z * z), 2 * (y * z - x * w)],
+            [2 * (x * z - y * w), 2 * (y * z + x * w), 1 - 2 * (x * x + y * y)],
+        ]
+    )
+
+
+def asymmetric_part():
+    """A closed, outward mesh with no symmetry: an L-shaped bracket plus an offset boss.
+
+    Every coordinate is a multiple of 1/8, so float32 (binary STL) stores it
+    exactly and every file format describes the very same solid.
+    """
+    bracket = shapes.extrusion([(1.0, 1.0), (1.0, 4.0), (0.0, 4.0), (0.0, 0.0), (3.0, 0.0), (3.0, 1.0)], 2.0, 0.5)
+    boss = shapes.box((1.0, 0.75, 1.25), (5.0, 2.5, 1.125))
+    return shapes.merge(bracket, boss)
+
+
+@pytest.fixture
+def write_mesh():
+    """``write_mesh(directory, stem, vertices, faces, file_format) -> Path``."""
+    return write_mesh_file
+
+
+@pytest.fixture(params=MESH_FORMATS)
+def mesh_format(request) -> str:
+    """Each supported file format in turn."""
+    return request.param
+
+
+@pytest.fixture
+def close():
+    """``close(actual, expected, rtol, what="")``: tensor comparison relative to the largest expected entry."""
+    return assert_tensor_close
+
+
+@pytest.fixture
+def rotation():
+    """``rotation(quaternion) -> (3, 3)`` proper rotation matrix."""
+    return rotation_from_quaternion
+
+
+@pytest.fixture
+def part():
+    """``(vertices, faces)`` of :func:`asymmetric_part`."""
+    return asymmetric_part()
