@@ -111,8 +111,9 @@ class _MomentSums:
     Each block is laid out as ``rows[axis, kind, face]`` (kind: a, b, c, s) so that
     every coordinate is one contiguous float64 row: ``d`` is then a handful of
     whole-row ufunc calls, and the second moments are six dot products of
-    ``4 k``-long rows, which numpy runs several times faster than a
-    ``(3, 4k) @ (4k, 3)`` matrix product (measured; see DEVELOPERS.md).
+    ``4 k``-long rows: no stacked ``(4k, 3)`` copies, and faster than a
+    ``(3, 4k) @ (4k, 3)`` matrix product, which numpy runs poorly for so thin a
+    shape (measured; see DEVELOPERS.md).
     """
 
     __slots__ = ("origin", "six_volume", "first", "second", "_rows", "_weighted", "_d", "_u", "_w")
