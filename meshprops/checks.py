@@ -64,6 +64,7 @@ NESTING_SHELL_LIMIT = 5000
 FLAT_VOLUME_RELATIVE = 1e-12
 
 _STEP = 1 << 18  # faces per block when streaming over a mesh
+_SMALL_STEP = 1 << 15  # faces per block for float64 work on every face (keeps temporaries small)
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -186,6 +187,46 @@ def _hash_rows(data: np.ndarray) -> np.ndarray:
     return result
 
 
+def _hash_runs(keys: np.ndarray, index_type) -> tuple[np.ndarray, int, np.ndarray]:
+    """Group rows by hash, numbering the groups densely in order of first appearance.
+
+    ``keys`` (N,) uint64 row hashes, consumed (sorted in place). The top bits of
+    each hash are packed with the row index and sorted; within a run of equal
+    hashes rows come in index order, so the run's first row is its smallest.
+
+    Returns ``(ids, count, firsts)``: (N,) the group of each row, the number of
+    groups, and (count,) the first row of each group (ascending).
+    """
+    count = keys.shape[0]
+    index_bits = max(1, int(count - 1).bit_length())
+    keys >>= np.uint64(index_bits)
+    keys <<= np.uint64(index_bits)
+    for start in range(0, count, 1 << 20):
+        stop = min(count, start + (1 << 20))
+        keys[start:stop] |= np.arange(start, stop, dtype=np.uint64)
+    keys.sort()
+    order = np.empty(count, dtype=index_type)
+    np.bitwise_and(keys, np.uint64((1 << index_bits) - 1), out=order, casting="unsafe")
+    keys >>= np.uint64(index_bits)  # the truncated hash, in sorted order
+    run_start = np.empty(count, dtype=bool)
+    run_start[0] = True
+    np.not_equal(keys[1:], keys[:-1], out=run_start[1:])
+    starts = np.flatnonzero(run_start)
+    del run_start
+    firsts = order[starts]  # first row of each run, in hash order
+    # Rank the runs by first row: mark first rows in row order and count the marks.
+    rank = np.zeros(count, dtype=index_type)
+    rank[firsts] = 1
+    np.cumsum(rank, out=rank)
+    group = rank[firsts] - 1
+    del rank
+    lengths = np.diff(np.append(starts, count))
+    ids = np.empty(count, dtype=index_type)
+    ids[order] = np.repeat(group, lengths)
+    firsts.sort()
+    return ids, int(starts.size), firsts
+
+
 def weld_positions(positions: np.ndarray) -> tuple[np.ndarray, int]:
     """Label bit-identical rows of ``positions`` (N, 3) with the same vertex id.
 
@@ -204,80 +245,112 @@ def weld_positions(positions: np.ndarray) -> tuple[np.ndarray, int]:
     if count == 0:
         return np.zeros(0, dtype=index_type), 0
     data = _coordinate_rows(positions)
-    index_bits = max(1, int(count - 1).bit_length())
-    keys = _hash_rows(data)
-    keys >>= np.uint64(index_bits)
-    keys <<= np.uint64(index_bits)
-    for start in range(0, count, 1 << 20):
-        stop = min(count, start + (1 << 20))
-        keys[start:stop] |= np.arange(start, stop, dtype=np.uint64)
-    keys.sort()
-    order = np.empty(count, dtype=index_type)
-    np.bitwise_and(keys, np.uint64((1 << index_bits) - 1), out=order, casting="unsafe")
-    keys >>= np.uint64(index_bits)  # the truncated hash, in sorted order
-    run_start = np.empty(count, dtype=bool)
-    run_start[0] = True
-    np.not_equal(keys[1:], keys[:-1], out=run_start[1:])
-    del keys
-    starts = np.flatnonzero(run_start)
-    del run_start
-    lengths = np.diff(np.append(starts, count))
-    first = np.repeat(order[starts], lengths)  # sorted by index within a run: its smallest row
-    del starts, lengths
-    ids = np.empty(count, dtype=index_type)
-    ids[order] = first
-    del order, first
+    ids, group_count, firsts = _hash_runs(_hash_rows(data), index_type)
     rows = data.view(np.dtype((np.void, data.dtype.itemsize * 3))).reshape(-1)
     unsigned = data.view(np.uint32 if data.dtype.itemsize == 4 else np.uint64)
+    table = rows[firsts]
     wrong = []
     block = 1 << 20
     for start in range(0, count, block):
         stop = min(count, start + block)
-        named = np.take(rows, ids[start:stop])
+        named = np.take(table, ids[start:stop])
         if not np.array_equal(named.view(unsigned.dtype).reshape(-1, 3), unsigned[start:stop]):
             wrong.append(np.flatnonzero(named != rows[start:stop]) + start)
-    if wrong:
-        # Rare: different positions share a truncated hash. Relabel those runs exactly.
-        runs = np.unique(ids[np.concatenate(wrong)])
-        members = np.flatnonzero(np.isin(ids, runs))
-        _, inverse = np.unique(rows[members], return_inverse=True)
-        inverse = inverse.reshape(-1)
-        smallest = np.full(int(inverse.max()) + 1, np.iinfo(index_type).max, dtype=index_type)
-        np.minimum.at(smallest, inverse, members.astype(index_type))
-        ids[members] = smallest[inverse]
-    # Dense ids in order of first appearance: a row that names itself starts a vertex.
-    rank = np.empty(count, dtype=index_type)
-    for start in range(0, count, block):
-        stop = min(count, start + block)
-        np.equal(ids[start:stop], np.arange(start, stop, dtype=index_type), out=rank[start:stop], casting="unsafe")
-    np.cumsum(rank, out=rank)
-    vertex_count = int(rank[-1])
-    rank -= 1
-    return np.take(rank, ids), vertex_count
+    if not wrong:
+        return ids, group_count
+    # Rare: different positions share a truncated hash. Label the rows of those runs exactly
+    # (by their own first row), then renumber everything densely in order of first appearance.
+    first_row = firsts[ids]
+    runs = np.unique(ids[np.concatenate(wrong)])
+    members = np.flatnonzero(np.isin(ids, runs))
+    _, inverse = np.unique(rows[members], return_inverse=True)
+    inverse = inverse.reshape(-1)
+    smallest = np.full(int(inverse.max()) + 1, np.iinfo(index_type).max, dtype=index_type)
+    np.minimum.at(smallest, inverse, members.astype(index_type))
+    first_row[members] = smallest[inverse]
+    unique_firsts, dense = np.unique(first_row, return_inverse=True)
+    return dense.reshape(-1).astype(index_type), int(unique_firsts.size)
+
+
+def _weld_memory_map(mesh: Mesh) -> tuple[np.ndarray, int, np.ndarray] | None:
+    """Weld the corners of a memory-mapped soup without copying it whole.
+
+    Hashes are taken block by block (the file's pages released behind the
+    reader); each corner is then compared, block by block again, with the
+    first corner of its vertex, gathered once into a table of one row per
+    vertex. Returns ``(ids (3F,), vertex_count, box (2, 3))``, or ``None`` when a
+    hash collision merged different positions (the caller then welds a full
+    copy with :func:`weld_positions`, which resolves collisions).
+    """
+    soup = mesh.soup
+    count = mesh.face_count * 3
+    index_type = _index_dtype(count)
+    keys = np.empty(count, dtype=np.uint64)
+    buffer = np.empty((_STEP, 3, 3), dtype=soup.dtype)
+    low = np.full(3, np.inf)
+    high = np.full(3, -np.inf)
+    for start, block in mesh.coordinate_blocks(_STEP):
+        buffer[: block.shape[0]] = block  # one strided copy out of the file's records
+        corners = buffer[: block.shape[0]].reshape(-1, 3)
+        corners += corners.dtype.type(0.0)  # -0.0 + 0.0 is +0.0; every other value is unchanged
+        keys[3 * start : 3 * start + corners.shape[0]] = _hash_rows(corners)
+        for axis in range(3):
+            column = corners[:, axis]
+            low[axis] = min(low[axis], float(column.min()))
+            high[axis] = max(high[axis], float(column.max()))
+    dense, vertex_count, representatives = _hash_runs(keys, index_type)
+    del keys
+    table = np.ascontiguousarray(soup[representatives // 3, representatives % 3])
+    table += table.dtype.type(0.0)
+    table_rows = table.view(np.dtype((np.void, table.dtype.itemsize * 3))).reshape(-1)
+    unsigned = np.uint32 if soup.dtype.itemsize == 4 else np.uint64
+    for start, block in mesh.coordinate_blocks(_STEP):
+        buffer[: block.shape[0]] = block
+        corners = buffer[: block.shape[0]].reshape(-1, 3)
+        corners += corners.dtype.type(0.0)
+        named = np.take(table_rows, dense[3 * start : 3 * start + corners.shape[0]])
+        if not np.array_equal(named.view(unsigned).reshape(-1, 3), corners.view(unsigned)):
+            return None
+    return dense, vertex_count, np.stack([low, high])
 
 
 def _soup_corners(mesh: Mesh) -> np.ndarray:
-    """``(3F, 3)`` contiguous corner coordinates of a soup mesh (copied from a memory map in blocks)."""
+    """``(3F, 3)`` contiguous corner coordinates of a soup mesh, in the file's dtype.
+
+    A memory-mapped binary STL is copied block by block with its pages released
+    behind the copy (:meth:`meshprops.io.Mesh.coordinate_blocks`), so the file
+    does not stay resident next to the copy.
+    """
     soup = mesh.soup
     if soup.flags.c_contiguous:
         return soup.reshape(-1, 3)
     corners = np.empty((mesh.face_count * 3, 3), dtype=soup.dtype)
-    for start in range(0, mesh.face_count, _STEP):
-        part = soup[start : start + _STEP]
-        corners[start * 3 : start * 3 + part.shape[0] * 3] = part.reshape(-1, 3)
+    blocks = mesh.coordinate_blocks(_STEP) if hasattr(mesh, "coordinate_blocks") else (
+        (start, soup[start : start + _STEP]) for start in range(0, mesh.face_count, _STEP)
+    )
+    for start, block in blocks:
+        corners[start * 3 : (start + block.shape[0]) * 3] = block.reshape(-1, 3)
     return corners
 
 
-def weld_exact(mesh: Mesh, corners: np.ndarray | None = None) -> Topology:
-    """Faces of ``mesh`` as dense ids of vertices with bit-identical coordinates.
+def weld_exact(mesh: Mesh) -> Topology:
+    """Faces of ``mesh`` as dense ids of vertices with bit-identical coordinates."""
+    return _weld_with_box(mesh)[0]
 
-    ``corners``: the rows :func:`mesh_rows` gives, when the caller already has them.
-    """
-    rows = mesh_rows(mesh) if corners is None else corners
+
+def _weld_with_box(mesh: Mesh) -> tuple[Topology, np.ndarray]:
+    """The welded topology and the (2, 3) bounding box (file unit), in one pass over the data."""
+    if mesh.soup is not None and not mesh.soup.flags.c_contiguous and mesh.soup.dtype in (np.float32, np.float64):
+        welded = _weld_memory_map(mesh)
+        if welded is not None:
+            ids, vertex_count, box = welded
+            return Topology(ids.reshape(-1, 3), vertex_count, vertex_count), box
+    rows = mesh_rows(mesh)
     ids, vertex_count = weld_positions(rows)
+    box = _bounding_box(mesh, rows)
     if mesh.soup is not None:
-        return Topology(ids.reshape(-1, 3), vertex_count, vertex_count)
-    return Topology(ids[mesh.faces], vertex_count, vertex_count)
+        return Topology(ids.reshape(-1, 3), vertex_count, vertex_count), box
+    return Topology(ids[mesh.faces], vertex_count, vertex_count), box
 
 
 def mesh_rows(mesh: Mesh) -> np.ndarray:
@@ -345,6 +418,20 @@ def face_corners(mesh: Mesh, faces: np.ndarray) -> np.ndarray:
     if mesh.soup is not None:
         return np.asarray(mesh.soup[faces], dtype=np.float64)
     return mesh.vertices[mesh.faces[faces]]
+
+
+def face_blocks(mesh: Mesh, block_faces: int = _STEP):
+    """Yield ``(start, corners)``: consecutive ``(k, 3, 3)`` float64 blocks of face corners in the file's unit.
+
+    A memory-mapped binary STL is read through :meth:`meshprops.io.Mesh.coordinate_blocks`,
+    which releases the file's pages behind the reader.
+    """
+    if mesh.soup is not None and hasattr(mesh, "coordinate_blocks"):
+        for start, block in mesh.coordinate_blocks(block_faces):
+            yield start, np.asarray(block, dtype=np.float64)
+        return
+    for start in range(0, mesh.face_count, block_faces):
+        yield start, face_corners(mesh, np.arange(start, min(mesh.face_count, start + block_faces)))
 
 
 def where(face_indices, mesh: Mesh, *, limit: int = WHERE_LIMIT) -> tuple[dict, ...]:
@@ -457,8 +544,26 @@ def vertex_shells(topology: Topology) -> tuple[np.ndarray, int]:
     numbered by each shell's first face.
     """
     faces = topology.face_vertices
+    if faces.shape[0] and _connected_by_first_appearance(faces, topology.id_bound):
+        return np.zeros(faces.shape[0], dtype=np.int32), 1
     labels = connected_components(topology.id_bound, [(faces[:, 0], faces[:, 1]), (faces[:, 0], faces[:, 2])])
     return dense_labels(labels[faces[:, 0]])
+
+
+def _connected_by_first_appearance(faces: np.ndarray, vertex_count: int) -> bool:
+    """A sufficient test of connectivity: every vertex but vertex 0 shares a face with a smaller one.
+
+    Following "a smaller neighbour" from any vertex then always ends at vertex
+    0, so all vertices are in one piece. With vertices numbered in order of
+    first appearance this holds for most files written face by face across a
+    surface; when it does not, the caller runs the full union-find.
+    """
+    smallest = np.minimum(np.minimum(faces[:, 0], faces[:, 1]), faces[:, 2])
+    has_smaller = np.zeros(vertex_count, dtype=bool)
+    for k in range(3):
+        column = faces[:, k]
+        has_smaller[column[column > smallest]] = True
+    return bool(has_smaller[1:].all()) and bool(np.any(faces == 0))
 
 
 def dense_labels(labels: np.ndarray) -> tuple[np.ndarray, int]:
@@ -641,9 +746,8 @@ def zero_area_faces(mesh: Mesh, topology: Topology, diagonal: float) -> np.ndarr
     found = []
     faces = topology.face_vertices
     resolution = np.finfo(mesh.soup.dtype if mesh.soup is not None else np.float64).eps
-    for start in range(0, mesh.face_count, _STEP):
-        stop = min(mesh.face_count, start + _STEP)
-        corners = face_corners(mesh, np.arange(start, stop))
+    for start, corners in face_blocks(mesh, _SMALL_STEP):
+        stop = start + corners.shape[0]
         edges = corners[:, [1, 2, 0]] - corners
         lengths = np.einsum("fki,fki->fk", edges, edges)
         longest = np.sqrt(lengths.max(axis=1))
@@ -823,9 +927,9 @@ def winding_numbers(points: np.ndarray, triangles: np.ndarray) -> np.ndarray:
     result = np.zeros(points.shape[0], dtype=np.int64)
     if triangles.shape[0] == 0:
         return result
-    y, z = triangles[:, :, 1], triangles[:, :, 2]
-    low_y, high_y, low_z, high_z = y.min(axis=1), y.max(axis=1), z.min(axis=1), z.max(axis=1)
-    high_x = triangles[:, :, 0].max(axis=1)
+    low = _corner_extreme(np.minimum, triangles)
+    high = _corner_extreme(np.maximum, triangles)
+    low_y, high_y, low_z, high_z, high_x = low[:, 1], high[:, 1], low[:, 2], high[:, 2], high[:, 0]
     for number, (qx, qy, qz) in enumerate(points):
         hit = (low_y <= qy) & (qy <= high_y) & (low_z <= qz) & (qz <= high_z) & (high_x > qx)
         candidates = np.flatnonzero(hit)
@@ -869,7 +973,8 @@ class Shells:
     volume : (S,) float64 signed volume of each shell, m³
     enclosing : (S,) int64 winding number of the other shells at a point on each shell
         (0 outside everything, 1 inside one outward shell, −1 inside a void ...)
-    depth : (S,) int64 how many other shells enclose each shell, whatever their winding
+    depth : (S,) int64 how many other shells enclose each shell whole (bounding box inside theirs
+        and probe inside), whatever their winding
     flat : (S,) bool, shells that enclose no volume
     nesting_checked : false when ``enclosing`` was not computed (too many shells)
     """
@@ -886,25 +991,30 @@ class Shells:
         return int(self.volume.size)
 
 
-def analyse_shells(mesh: Mesh, shell_of_face: np.ndarray, shell_count: int, *, nesting: bool = True) -> Shells:
+def analyse_shells(
+    mesh: Mesh, shell_of_face: np.ndarray, shell_count: int, *, nesting: bool = True, box: np.ndarray | None = None
+) -> Shells:
     """Per-shell signed volume and, with ``nesting``, the winding number of the other shells at each shell.
 
-    ``shell_of_face`` (F,) holds dense labels ``0..shell_count-1``; faces labelled −1 are ignored.
+    ``shell_of_face`` (F,) holds dense labels ``0..shell_count-1``; faces labelled −1 are
+    ignored. Two streaming passes over the faces (the second only with several shells).
     """
     extent_low = np.full((shell_count, 3), np.inf)
     extent_high = np.full((shell_count, 3), -np.inf)
+    first_face = np.full(shell_count, mesh.face_count, dtype=np.int64)
     volume = np.zeros(shell_count)
-    origin = _bounding_box(mesh).mean(axis=0)
-    for start in range(0, mesh.face_count, _STEP):
-        stop = min(mesh.face_count, start + _STEP)
-        labels = shell_of_face[start:stop]
+    origin = (_bounding_box(mesh) if box is None else box).mean(axis=0)
+    for start, block in face_blocks(mesh, _SMALL_STEP):
+        labels = shell_of_face[start : start + block.shape[0]]
         faces = np.flatnonzero(labels >= 0)
-        corners = face_corners(mesh, faces + start) - origin
+        corners = block[faces] - origin
         labels = labels[faces]
         six = np.einsum("ij,ij->i", corners[:, 0], np.cross(corners[:, 1], corners[:, 2]))
         volume += np.bincount(labels, weights=six, minlength=shell_count)
-        np.minimum.at(extent_low, labels, corners.min(axis=1))
-        np.maximum.at(extent_high, labels, corners.max(axis=1))
+        if labels.size:
+            _reduce_by_label(np.minimum, extent_low, labels, _corner_extreme(np.minimum, corners))
+            _reduce_by_label(np.maximum, extent_high, labels, _corner_extreme(np.maximum, corners))
+            _reduce_by_label(np.minimum, first_face, labels, faces + start)
     scale = mesh.metres_per_unit
     volume *= scale**3 / 6.0
     cube = (np.maximum(extent_high - extent_low, 0.0).max(axis=1) * scale) ** 3
@@ -914,33 +1024,82 @@ def analyse_shells(mesh: Mesh, shell_of_face: np.ndarray, shell_count: int, *, n
     checked = nesting and shell_count <= NESTING_SHELL_LIMIT
     if checked and shell_count > 1:
         low, high = extent_low + origin, extent_high + origin
-        enclosing, depth = _enclosing_windings(mesh, shell_of_face, shell_count, low, high, flat)
+        enclosing, depth = _enclosing_windings(mesh, shell_of_face, first_face, low, high, flat, volume)
     return Shells(shell_of_face, volume, enclosing, depth, flat, checked)
 
 
-def _enclosing_windings(mesh, shell_of_face, shell_count, low, high, flat) -> np.ndarray:
-    order = np.argsort(shell_of_face, kind="stable")
-    bounds = np.searchsorted(shell_of_face[order], np.arange(shell_count + 1))
-    order, bounds = order[bounds[0] :], bounds - bounds[0]  # faces labelled -1 sort first
-    # One probe point per shell: the centroid of its largest face among its first few.
-    probes = np.empty((shell_count, 3))
-    for shell in range(shell_count):
-        faces = order[bounds[shell] : min(bounds[shell + 1], bounds[shell] + 16)]
+def _corner_extreme(ufunc, corners: np.ndarray) -> np.ndarray:
+    """(k, 3) element-wise min or max over the three corners of (k, 3, 3) faces.
+
+    Two element-wise ufunc calls: ``corners.min(axis=1)`` is several times slower.
+    """
+    return ufunc(ufunc(corners[:, 0], corners[:, 1]), corners[:, 2])
+
+
+def _reduce_by_label(ufunc, out: np.ndarray, labels: np.ndarray, values: np.ndarray) -> None:
+    """``out[label] = ufunc(out[label], values)`` for each row; faces of a shell mostly come in runs,
+    so each run is reduced first (``reduceat``) and only the run results are scattered."""
+    starts = np.flatnonzero(np.r_[True, labels[1:] != labels[:-1]])
+    ufunc.at(out, labels[starts], ufunc.reduceat(values, starts, axis=0))
+
+
+def _shell_probes(mesh, shell_of_face, first_face, volume) -> np.ndarray:
+    """(S, 3) one point per shell, just inside the region it encloses (file unit).
+
+    The centroid of the largest of the shell's first faces (within 64 faces of
+    its first one), moved a hair (1e-6 of that face's longest edge) into the
+    region the shell encloses, so that a shell resting on another (a face lying
+    in the other's face) is not probed on that other surface.
+    """
+    probes = np.empty((first_face.size, 3))
+    for shell, first in enumerate(first_face):
+        window = np.arange(first, min(mesh.face_count, first + 64))
+        faces = window[shell_of_face[window] == shell]
         corners = face_corners(mesh, faces)
-        area = np.linalg.norm(np.cross(corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0]), axis=1)
-        probes[shell] = corners[int(np.argmax(area))].mean(axis=0)
-    windings = np.zeros(shell_count, dtype=np.int64)
-    depth = np.zeros(shell_count, dtype=np.int64)
-    for shell in np.flatnonzero(~flat):
-        inside_box = np.all((probes >= low[shell]) & (probes <= high[shell]), axis=1)
-        inside_box[shell] = False
-        queries = np.flatnonzero(inside_box)
-        if queries.size == 0:
-            continue
-        triangles = face_corners(mesh, order[bounds[shell] : bounds[shell + 1]])
-        winding = winding_numbers(probes[queries], triangles)
-        windings[queries] += winding
-        depth[queries] += np.abs(winding)
+        normals = np.cross(corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0])
+        area = np.linalg.norm(normals, axis=1)
+        best = int(np.argmax(area))
+        longest = float(np.linalg.norm(corners[best] - corners[best][[1, 2, 0]], axis=1).max())
+        inward = -np.sign(volume[shell]) * normals[best] / max(area[best], 1e-300)
+        probes[shell] = corners[best].mean(axis=0) + 1e-6 * longest * inward
+    return probes
+
+
+def _enclosing_windings(mesh, shell_of_face, first_face, low, high, flat, volume):
+    """Winding number of every other shell at each shell's probe, and the nesting depth.
+
+    One streaming pass: for every (container, probe) pair whose boxes allow it,
+    the container's faces in each block that the probe's +x ray can cross are
+    counted with :func:`winding_numbers`.
+    """
+    shell_count = first_face.size
+    probes = _shell_probes(mesh, shell_of_face, first_face, volume)
+    inside = np.all((probes[None, :, :] >= low[:, None, :]) & (probes[None, :, :] <= high[:, None, :]), axis=2)
+    inside &= ~flat[:, None]
+    np.fill_diagonal(inside, False)
+    containers, queries = np.nonzero(inside)  # pairs (container shell, probed shell)
+    pair_winding = np.zeros(containers.size, dtype=np.int64)
+    if containers.size:
+        for start, block in face_blocks(mesh, _SMALL_STEP):
+            labels = shell_of_face[start : start + block.shape[0]]
+            face_low = _corner_extreme(np.minimum, block)
+            face_high = _corner_extreme(np.maximum, block)
+            for number, (container, query) in enumerate(zip(containers, queries)):
+                qx, qy, qz = probes[query]
+                hit = (
+                    (labels == container)
+                    & (face_low[:, 1] <= qy) & (qy <= face_high[:, 1])
+                    & (face_low[:, 2] <= qz) & (qz <= face_high[:, 2])
+                    & (face_high[:, 0] > qx)
+                )  # fmt: skip
+                candidates = np.flatnonzero(hit)
+                if candidates.size:
+                    pair_winding[number] += int(winding_numbers(probes[query][None], block[candidates])[0])
+    windings = np.bincount(queries, weights=pair_winding, minlength=shell_count).astype(np.int64)
+    # Nesting depth counts only containers that hold the whole shell (its box inside theirs):
+    # a shell that merely overlaps another is not nested in it.
+    whole = np.all((low[queries] >= low[containers]) & (high[queries] <= high[containers]), axis=1)
+    depth = np.bincount(queries, weights=np.abs(pair_winding) * whole, minlength=shell_count).astype(np.int64)
     return windings, depth
 
 
@@ -1050,8 +1209,8 @@ def triangles_cross(first: np.ndarray, second: np.ndarray, *, relative_tolerance
     Returns
     -------
     (P,) bool. Coplanar pairs and pairs that only touch (at a point, or along
-    an edge lying in the other's plane without passing through it) are not
-    counted. Möller's interval test (Möller 1997, "A fast triangle-triangle
+    an edge lying in the other's plane: a face resting on another) are not
+    counted, so solids stacked on or touching each other are not flagged. Möller's interval test (Möller 1997, "A fast triangle-triangle
     intersection test", J. Graphics Tools 2(2); from memory): each triangle
     meets the other's plane in an interval of the planes' common line, and the
     triangles cross when the two intervals overlap.
@@ -1076,8 +1235,10 @@ def triangles_cross(first: np.ndarray, second: np.ndarray, *, relative_tolerance
     line = np.cross(normal_a, normal_b)
     line_norm = np.linalg.norm(line, axis=1)
     usable = (line_norm > relative_tolerance * norm_a * norm_b) & (norm_a > 0) & (norm_b > 0)
-    straddle_a = (dist_a.max(axis=1) >= 0) & (dist_a.min(axis=1) <= 0) & ~zero_a.all(axis=1)
-    straddle_b = (dist_b.max(axis=1) >= 0) & (dist_b.min(axis=1) <= 0) & ~zero_b.all(axis=1)
+    # Each triangle must have corners strictly on both sides of the other's plane: one that only
+    # touches the plane (a corner or an edge in it) rests on the other face, it does not pass through.
+    straddle_a = (dist_a.max(axis=1) > 0) & (dist_a.min(axis=1) < 0)
+    straddle_b = (dist_b.max(axis=1) > 0) & (dist_b.min(axis=1) < 0)
     candidate = usable & straddle_a & straddle_b
     low_a, high_a = _plane_interval(a, dist_a, line)
     low_b, high_b = _plane_interval(b, dist_b, line)
@@ -1113,8 +1274,8 @@ def self_intersection_pairs(mesh: Mesh, topology: Topology, *, block: int = 20_0
     count = mesh.face_count
     if count < 2:
         return np.zeros((0, 2), dtype=np.int64)
-    corners = np.concatenate([face_corners(mesh, np.arange(s, min(count, s + _STEP))) for s in range(0, count, _STEP)])
-    low, high = corners.min(axis=1), corners.max(axis=1)
+    corners = np.concatenate([block for _, block in face_blocks(mesh)])
+    low, high = _corner_extreme(np.minimum, corners), _corner_extreme(np.maximum, corners)
     properties = index.Property()
     properties.dimension = 3
     properties.leaf_capacity = 32
@@ -1222,12 +1383,10 @@ def validate(mesh: Mesh, moments: Moments, *, thorough: bool = False) -> Validat
     (cancelling pairs), ``near_coincident_vertices``, ``flat_shell``,
     ``implausible_size``, ``nesting_not_checked``, ``self_intersection_not_checked``.
     """
-    rows = mesh_rows(mesh)
-    topology = weld_exact(mesh, rows)
+    topology, box = _weld_with_box(mesh)
     findings: list[Finding] = []
     extra: dict = {"holes": 0}
-    extent = _bounding_extent(mesh, rows)
-    del rows
+    extent = (box[1] - box[0]) * mesh.metres_per_unit
     closed = is_closed_and_oriented(topology)
     if closed:
         edge_count = mesh.face_count * 3 // 2  # a closed, consistent surface has 3F/2 edges
@@ -1273,7 +1432,7 @@ def validate(mesh: Mesh, moments: Moments, *, thorough: bool = False) -> Validat
             findings.extend(_volume_findings(mesh, moments, extent))
             extra["voids"] = 0
         else:
-            shells = analyse_shells(mesh, shell_of_face, shell_count)
+            shells = analyse_shells(mesh, shell_of_face, shell_count, box=box)
             findings.extend(shell_findings(mesh, shells))
             extra["voids"] = int(np.count_nonzero((shells.volume < 0) & (shells.enclosing == 1) & ~shells.flat))
     if thorough or mesh.face_count <= SELF_INTERSECTION_FACE_LIMIT:
@@ -1305,6 +1464,7 @@ def _volume_findings(mesh: Mesh, moments: Moments, extent: np.ndarray | None = N
                 ERROR,
                 1,
                 f"the surface is inside-out (every normal points inward; signed volume {moments.volume:.6g} m^3)",
+                where(np.arange(min(mesh.face_count, WHERE_LIMIT)), mesh),
             )
         ]
     return []

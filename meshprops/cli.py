@@ -214,8 +214,9 @@ def check(
     else:
         sys.stdout.write(text)
     for result in results:
-        for error in result.report.errors:
-            _say(f"{result.source}: {error.code}: {error.message}")
+        if result.report.errors:
+            first = result.report.errors[0]
+            _say(f"{result.source}: invalid mesh: {first.code}: {first.message}")
     if any(not result.report.valid for result in results):
         raise typer.Exit(EXIT_INVALID)
     raise typer.Exit(EXIT_WARNINGS if any(result.report.findings for result in results) else EXIT_OK)

@@ -247,6 +247,11 @@ def _read_bytes(source: str) -> bytes:
         raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None
 
 
+#: Coordinates beyond this magnitude (in the file's unit) are refused: the moments multiply five
+#: coordinates together, which would overflow float64 near 1e61.
+MAX_ABS_COORDINATE = 1e30
+
+
 def _checked(mesh: Mesh) -> Mesh:
     """Reject empty meshes and non-finite coordinates (scanned in blocks)."""
     if mesh.face_count == 0:
@@ -257,12 +262,19 @@ def _checked(mesh: Mesh) -> Mesh:
         # (possible for float64 data only): then the element-wise test below decides.
         with np.errstate(over="ignore", invalid="ignore"):
             total = np.add.reduce(block, axis=None, dtype=np.float64)
+        what = "triangle" if mesh.soup is not None else "vertex"
         if np.isfinite(total):
+            if block.dtype.itemsize > 4:
+                # float64 coordinates can be finite yet so large that products of five of them
+                # overflow (float32 ones cannot): refuse absurd magnitudes here, in one clear line.
+                magnitude = np.abs(block)
+                if magnitude.max() > MAX_ABS_COORDINATE:  # one flat reduction; locate the row only then
+                    bad = int(np.argmax(magnitude.reshape(len(block), -1).max(axis=1) > MAX_ABS_COORDINATE)) + start
+                    raise MeshFileError(mesh.source, f"{what} {bad} has a coordinate beyond {MAX_ABS_COORDINATE:g} in magnitude")
             continue
         finite = np.isfinite(block).reshape(len(block), -1).all(axis=1)
         if not finite.all():
             bad = int(np.argmin(finite)) + start
-            what = "triangle" if mesh.soup is not None else "vertex"
             raise MeshFileError(mesh.source, f"{what} {bad} has a NaN or infinite coordinate")
     return mesh
 
@@ -512,6 +524,20 @@ def _read_ply(source: str, data: bytes, unit: str, scale: float) -> Mesh:
     names = [element.name for element in elements]
     if "vertex" not in names or "face" not in names:
         raise MeshFileError(source, "PLY needs a 'vertex' and a 'face' element")
+    if len(set(names)) != len(names):
+        raise MeshFileError(source, f"PLY header declares an element twice: {', '.join(names)}")
+    for element in elements:
+        property_names = [prop.name for prop in element.properties]
+        if len(set(property_names)) != len(property_names):
+            raise MeshFileError(source, f"PLY element {element.name!r} declares a property twice: {', '.join(property_names)}")
+        for prop in element.properties:
+            if prop.count_dtype is not None and prop.count_dtype.startswith("f"):
+                raise MeshFileError(source, f"PLY list {prop.name!r} has a floating-point count type; counts are integers")
+            if element.name == "face" and prop.name in ("vertex_indices", "vertex_index"):
+                if prop.count_dtype is None:
+                    raise MeshFileError(source, f"PLY face property {prop.name!r} must be a list")
+                if prop.dtype.startswith("f"):
+                    raise MeshFileError(source, f"PLY face property {prop.name!r} holds floats; vertex indices are integers")
 
     if encoding == "ascii":
         values = _ply_ascii_values(source, elements, body)
@@ -584,14 +610,14 @@ def _ply_ascii_values(source: str, elements: list[_PlyElement], body: bytes) -> 
                         position += 1
                     else:
                         length = numbers[position]
-                        if length != int(length) or length < 0:
-                            raise MeshFileError(source, f"PLY list length {length!r} is not a count")
+                        if not np.isfinite(length) or length != int(length) or length < 0:
+                            raise MeshFileError(source, f"PLY list length {float(length):g} is not a count")
                         length = int(length)
                         items = numbers[position + 1 : position + 1 + length]
                         if items.size != length:
                             raise MeshFileError(source, f"PLY ends inside element {element.name!r} (truncated?)")
-                        if np.any(items != np.round(items)):
-                            raise MeshFileError(source, f"PLY list {prop.name!r} holds a non-integer index")
+                        if not np.all(np.isfinite(items)) or np.any(items != np.round(items)) or np.any(np.abs(items) > 2**53):
+                            raise MeshFileError(source, f"PLY list {prop.name!r} holds a value that is not an integer index")
                         rows[prop.name].append(items.astype(np.int64))
                         position += 1 + length
             for prop in element.properties:
