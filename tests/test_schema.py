@@ -42,3 +42,26 @@ def test_invalid_body_validates_with_null_numbers(tmp_path):
     assert body["valid"] is False
     assert body["mass"] is None and body["inertia_about_com"] is None
     assert any(f["code"] == "open_edges" and f["severity"] == "error" for f in body["findings"])
+
+
+CHECK_SCHEMA = json.loads((ROOT / "meshprops" / "schema" / "check.schema.json").read_text())
+EXAMPLES = ROOT / "tests" / "meshes"
+
+
+def test_check_json_validates_over_the_example_folders():
+    files = sorted(str(p) for folder in ("valid", "warnings", "invalid") for p in (EXAMPLES / folder).glob("*.obj"))
+    assert files, "the example folders are empty"
+    result = CliRunner().invoke(app, ["check", *files, "--json"])
+    assert result.exit_code == 1, result.output  # the invalid folder holds errors
+    doc = json.loads(result.stdout)
+    jsonschema.validate(doc, CHECK_SCHEMA)
+    assert doc["summary"]["files"] == len(files)
+    assert doc["summary"]["errors"] > 0 and doc["summary"]["valid"] < len(files)
+
+
+def test_measure_json_of_a_hollow_part_reports_its_void():
+    result = CliRunner().invoke(app, ["measure", str(ROOT / "sample_meshes" / "counterweight.stl"), "--json", "-d", "8500"])
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    jsonschema.validate(doc, SCHEMA)
+    assert doc["bodies"][0]["mesh"]["shells"] == 2 and doc["bodies"][0]["mesh"]["voids"] == 1
