@@ -136,7 +136,7 @@ class Topology:
 
 # ------------------------------------------------------------------------- welding
 
-_K1, _K2, _K3 = (np.uint64(k) for k in (0x9E3779B97F4A7C15, 0xC2B2AE3D27D4EB4F, 0xFF51AFD7ED558CCD))
+_SEED = np.uint64(0x9E3779B97F4A7C15)  # the golden-ratio constant: any fixed odd seed works
 
 
 def _index_dtype(count: int):
@@ -156,8 +156,29 @@ def _coordinate_rows(positions: np.ndarray) -> np.ndarray:
     return data
 
 
+_MIX1 = np.uint64(0xBF58476D1CE4E5B9)
+_MIX2 = np.uint64(0x94D049BB133111EB)
+
+
+def _mix_into(out: np.ndarray, tmp: np.ndarray) -> None:
+    """The splitmix64 finalizer, in place. Every input bit reaches every output bit, which
+    matters here: round coordinates (1.0, 0.5, 25.0) have all-zero low mantissa bits, and a
+    bare multiply only carries bits upwards, so a weaker mix makes false collisions common."""
+    np.right_shift(out, np.uint64(30), out=tmp)
+    out ^= tmp
+    out *= _MIX1
+    np.right_shift(out, np.uint64(27), out=tmp)
+    out ^= tmp
+    out *= _MIX2
+    np.right_shift(out, np.uint64(31), out=tmp)
+    out ^= tmp
+
+
 def _hash_rows(data: np.ndarray) -> np.ndarray:
-    """A 64-bit mixing hash of the coordinate bits of each row of ``data`` (N, 3) float32/float64."""
+    """A 64-bit hash of the coordinate bits of each row of ``data`` (N, 3) float32/float64.
+
+    The row's words are absorbed one at a time, ``h = mix(h ^ word)``.
+    """
     count = data.shape[0]
     result = np.empty(count, dtype=np.uint64)
     block = 1 << 20
@@ -166,24 +187,17 @@ def _hash_rows(data: np.ndarray) -> np.ndarray:
         # x and y together are one (unaligned) 64-bit word, z a 32-bit one.
         pair = np.ndarray((count,), dtype=np.uint64, buffer=data, offset=0, strides=(12,))
         last = np.ndarray((count,), dtype=np.uint32, buffer=data, offset=8, strides=(12,))
-        parts = ((pair, _K1), (last, _K2))
+        words = (pair, last)
     else:
         bits = data.view(np.uint64)
-        parts = ((bits[:, 0], _K1), (bits[:, 1], _K2), (bits[:, 2], _K3))
+        words = (bits[:, 0], bits[:, 1], bits[:, 2])
     for start in range(0, count, block):
         stop = min(count, start + block)
         out, tmp = result[start:stop], scratch[: stop - start]
-        np.multiply(parts[0][0][start:stop], parts[0][1], out=out, casting="unsafe")
-        for column, multiplier in parts[1:]:
-            np.multiply(column[start:stop], multiplier, out=tmp, casting="unsafe")
-            out ^= tmp
-            np.right_shift(out, np.uint64(29), out=tmp)
-            out ^= tmp
-        np.right_shift(out, np.uint64(32), out=tmp)
-        out ^= tmp
-        out *= _K3
-        np.right_shift(out, np.uint64(29), out=tmp)
-        out ^= tmp
+        out[...] = _SEED
+        for word in words:
+            np.bitwise_xor(out, word[start:stop], out=out, casting="unsafe")
+            _mix_into(out, tmp)
     return result
 
 
@@ -231,8 +245,9 @@ def weld_positions(positions: np.ndarray) -> tuple[np.ndarray, int]:
     """Label bit-identical rows of ``positions`` (N, 3) with the same vertex id.
 
     Returns ``(ids, vertex_count)``: ``ids`` (N,) int32 (int64 above 2**31 rows)
-    in ``0 .. vertex_count - 1``, numbered in order of first appearance, and the
-    number of distinct positions. Exact: rows get the same id if and only if
+    in ``0 .. vertex_count - 1``, numbered in order of first appearance (rows split
+    off by a rare truncated-hash collision get the last ids), and the number of
+    distinct positions. Exact: rows get the same id if and only if
     their coordinates are equal (with -0.0 equal to +0.0).
 
     Sort (truncated hash | row index) keys; each run of equal hashes names its
@@ -246,41 +261,45 @@ def weld_positions(positions: np.ndarray) -> tuple[np.ndarray, int]:
         return np.zeros(0, dtype=index_type), 0
     data = _coordinate_rows(positions)
     ids, group_count, firsts = _hash_runs(_hash_rows(data), index_type)
-    rows = data.view(np.dtype((np.void, data.dtype.itemsize * 3))).reshape(-1)
     unsigned = data.view(np.uint32 if data.dtype.itemsize == 4 else np.uint64)
-    table = rows[firsts]
+    table = unsigned[firsts]
     wrong = []
     block = 1 << 20
     for start in range(0, count, block):
         stop = min(count, start + block)
-        named = np.take(table, ids[start:stop])
-        if not np.array_equal(named.view(unsigned.dtype).reshape(-1, 3), unsigned[start:stop]):
-            wrong.append(np.flatnonzero(named != rows[start:stop]) + start)
-    if not wrong:
-        return ids, group_count
-    # Rare: different positions share a truncated hash. Label the rows of those runs exactly
-    # (by their own first row), then renumber everything densely in order of first appearance.
-    first_row = firsts[ids]
-    runs = np.unique(ids[np.concatenate(wrong)])
-    members = np.flatnonzero(np.isin(ids, runs))
-    _, inverse = np.unique(rows[members], return_inverse=True)
+        named = np.take(table, ids[start:stop], axis=0)
+        if not np.array_equal(named, unsigned[start:stop]):
+            wrong.append(np.flatnonzero(np.any(named != unsigned[start:stop], axis=1)) + start)
+    if wrong:
+        rows = np.concatenate(wrong)
+        group_count = _split_collisions(ids, group_count, rows, unsigned[rows])
+    return ids, group_count
+
+
+def _split_collisions(ids: np.ndarray, count: int, rows: np.ndarray, bits: np.ndarray) -> int:
+    """Give rows that share a truncated hash with a different position ids of their own.
+
+    ``rows`` are the rows whose coordinate ``bits`` (normalized, (k, 3)) differ
+    from the first row of their hash run; rows equal to each other within the
+    same run share a new id. ``ids`` is updated in place; returns the new count.
+    Rare (a few rows per collision), so exact grouping by ``np.unique`` is cheap.
+    """
+    keys = np.column_stack([ids[rows].astype(np.uint64), bits.astype(np.uint64)])
+    _, inverse = np.unique(keys, axis=0, return_inverse=True)
     inverse = inverse.reshape(-1)
-    smallest = np.full(int(inverse.max()) + 1, np.iinfo(index_type).max, dtype=index_type)
-    np.minimum.at(smallest, inverse, members.astype(index_type))
-    first_row[members] = smallest[inverse]
-    unique_firsts, dense = np.unique(first_row, return_inverse=True)
-    return dense.reshape(-1).astype(index_type), int(unique_firsts.size)
+    ids[rows] = count + inverse
+    return count + int(inverse.max()) + 1
 
 
-def _weld_memory_map(mesh: Mesh) -> tuple[np.ndarray, int, np.ndarray] | None:
+def _weld_memory_map(mesh: Mesh) -> tuple[np.ndarray, int, np.ndarray]:
     """Weld the corners of a memory-mapped soup without copying it whole.
 
     Hashes are taken block by block (the file's pages released behind the
     reader); each corner is then compared, block by block again, with the
     first corner of its vertex, gathered once into a table of one row per
-    vertex. Returns ``(ids (3F,), vertex_count, box (2, 3))``, or ``None`` when a
-    hash collision merged different positions (the caller then welds a full
-    copy with :func:`weld_positions`, which resolves collisions).
+    vertex. Corners that differ from their vertex's first corner (a truncated-hash
+    collision, a few per million vertices) are split off exactly by
+    :func:`_split_collisions`. Returns ``(ids (3F,), vertex_count, box (2, 3))``.
     """
     soup = mesh.soup
     count = mesh.face_count * 3
@@ -302,15 +321,21 @@ def _weld_memory_map(mesh: Mesh) -> tuple[np.ndarray, int, np.ndarray] | None:
     del keys
     table = np.ascontiguousarray(soup[representatives // 3, representatives % 3])
     table += table.dtype.type(0.0)
-    table_rows = table.view(np.dtype((np.void, table.dtype.itemsize * 3))).reshape(-1)
     unsigned = np.uint32 if soup.dtype.itemsize == 4 else np.uint64
+    table_bits = table.view(unsigned)
+    wrong_rows, wrong_bits = [], []
     for start, block in mesh.coordinate_blocks(_STEP):
         buffer[: block.shape[0]] = block
         corners = buffer[: block.shape[0]].reshape(-1, 3)
         corners += corners.dtype.type(0.0)
-        named = np.take(table_rows, dense[3 * start : 3 * start + corners.shape[0]])
-        if not np.array_equal(named.view(unsigned).reshape(-1, 3), corners.view(unsigned)):
-            return None
+        bits = corners.view(unsigned)
+        named = np.take(table_bits, dense[3 * start : 3 * start + corners.shape[0]], axis=0)
+        if not np.array_equal(named, bits):
+            local = np.flatnonzero(np.any(named != bits, axis=1))
+            wrong_rows.append(local + 3 * start)
+            wrong_bits.append(bits[local].copy())
+    if wrong_rows:  # a truncated-hash collision: split those rows off exactly
+        vertex_count = _split_collisions(dense, vertex_count, np.concatenate(wrong_rows), np.concatenate(wrong_bits))
     return dense, vertex_count, np.stack([low, high])
 
 
@@ -341,10 +366,8 @@ def weld_exact(mesh: Mesh) -> Topology:
 def _weld_with_box(mesh: Mesh) -> tuple[Topology, np.ndarray]:
     """The welded topology and the (2, 3) bounding box (file unit), in one pass over the data."""
     if mesh.soup is not None and not mesh.soup.flags.c_contiguous and mesh.soup.dtype in (np.float32, np.float64):
-        welded = _weld_memory_map(mesh)
-        if welded is not None:
-            ids, vertex_count, box = welded
-            return Topology(ids.reshape(-1, 3), vertex_count, vertex_count), box
+        ids, vertex_count, box = _weld_memory_map(mesh)
+        return Topology(ids.reshape(-1, 3), vertex_count, vertex_count), box
     rows = mesh_rows(mesh)
     ids, vertex_count = weld_positions(rows)
     box = _bounding_box(mesh, rows)

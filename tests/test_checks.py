@@ -225,12 +225,15 @@ def test_welding_stays_exact_when_every_hash_collides(monkeypatch):
     positions = rng.integers(0, 4, size=(300, 3)).astype(np.float64)
     ids, count = checks.weld_positions(positions)
     expected = _reference_weld(positions)
-    np.testing.assert_array_equal(ids, expected)
-    assert count == len(np.unique(positions, axis=0))
+    # Same partition as the reference (rows split off by a collision are numbered last, so
+    # compare the pairing of ids, not the numbers), and dense ids.
+    pairs = set(zip(ids.tolist(), expected.tolist()))
+    assert len(pairs) == len(set(ids.tolist())) == len(set(expected.tolist()))
+    assert count == len(np.unique(positions, axis=0)) and set(ids.tolist()) == set(range(count))
 
 
 def test_welding_a_memory_mapped_stl_stays_exact_when_every_hash_collides(tmp_path, monkeypatch):
-    """The block-wise path detects the merged positions and falls back to the exact full-copy path."""
+    """The block-wise path detects the merged positions and splits them off exactly."""
     from meshprops import load_mesh
 
     vertices, faces = shapes.torus(2.0, 0.5, 12, 6)
@@ -240,7 +243,8 @@ def test_welding_a_memory_mapped_stl_stays_exact_when_every_hash_collides(tmp_pa
     honest = checks.weld_exact(mesh)
     monkeypatch.setattr(checks, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
     forced = checks.weld_exact(mesh)
-    np.testing.assert_array_equal(forced.face_vertices, honest.face_vertices)
+    pairs = set(zip(forced.face_vertices.reshape(-1).tolist(), honest.face_vertices.reshape(-1).tolist()))
+    assert len(pairs) == len(vertices)  # the same partition of corners into vertices
     np.testing.assert_array_equal(honest.face_vertices.reshape(-1), _reference_weld(np.asarray(mesh.soup).reshape(-1, 3)))
     assert forced.vertex_count == len(vertices)
 
