@@ -16,17 +16,10 @@ import numpy as np
 
 if TYPE_CHECKING:  # the assembly machinery is imported only where a manifest is measured
     from .assembly import AssemblyItem, AssemblyResult
-from .emit import CONVENTIONS, body_to_dict, document, render_table
+from .emit import CONVENTIONS, body_to_dict, document, matrix_to_list, render_table, vector_to_list
 from .materials import material_to_dict
 from .simulators import plausibility_to_dict
 
-
-def _vector(values) -> list[float] | None:
-    return None if values is None else [float(x) for x in np.asarray(values, dtype=np.float64).reshape(-1)]
-
-
-def _matrix(values) -> list[list[float]] | None:
-    return None if values is None else [[float(x) for x in row] for row in np.asarray(values, dtype=np.float64)]
 
 ASSEMBLY_CONVENTIONS = {
     "frame": "assembly frame: every body's values after its placement x -> R x + t (t in m); a mesh body's values "
@@ -51,7 +44,7 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
         data.pop("mesh", None)
         spec = item.spec
         data["own_inertia_given"] = spec.inertia_given
-        data["box_size"] = _vector(spec.box_size)
+        data["box_size"] = vector_to_list(spec.box_size)
     else:
         spec = item.spec
         data["material"] = material_to_dict(spec.material) if spec.material else None
@@ -60,18 +53,18 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
         data["implied_density"] = item.measurement.density if spec.measured_mass is not None else None
         data["implied_density_ratio_to_material"] = item.implied_density_ratio
         data["placement"] = {
-            "rotation": _matrix(item.placement.rotation),
-            "translation": _vector(item.placement.translation),
+            "rotation": matrix_to_list(item.placement.rotation),
+            "translation": vector_to_list(item.placement.translation),
         }
         if item.local is not None:
             from .principal import principal_frame
 
             frame = principal_frame(item.local.inertia_about_com)
             data["body_frame"] = {
-                "center_of_mass": _vector(item.local.center_of_mass),
-                "inertia_about_com": _matrix(item.local.inertia_about_com),
-                "principal_moments": _vector(frame.moments),
-                "principal_axes": _matrix(frame.axes),
+                "center_of_mass": vector_to_list(item.local.center_of_mass),
+                "inertia_about_com": matrix_to_list(item.local.inertia_about_com),
+                "principal_moments": vector_to_list(frame.moments),
+                "principal_axes": matrix_to_list(frame.axes),
             }
         else:
             data["body_frame"] = None
@@ -89,17 +82,17 @@ def assembly_document(result: "AssemblyResult") -> dict:
     total["name"] = "total"
     total["kind"] = "total"
     total["inertia_about_named_points"] = {
-        name: {"point": _vector(point), "tensor": _matrix(tensor)} for name, (point, tensor) in result.named_points.items()
+        name: {"point": vector_to_list(point), "tensor": matrix_to_list(tensor)} for name, (point, tensor) in result.named_points.items()
     }
     total["in_frames"] = {
         name: {
-            "origin": _vector(view.frame.origin),
-            "axes": _matrix(view.frame.rotation.T),
-            "center_of_mass": _vector(view.properties.center_of_mass),
-            "inertia_about_com": _matrix(view.properties.inertia_about_com),
-            "inertia_about_origin": _matrix(view.inertia_about_origin),
-            "principal_moments": _vector(view.principal.moments),
-            "principal_axes": _matrix(view.principal.axes),
+            "origin": vector_to_list(view.frame.origin),
+            "axes": matrix_to_list(view.frame.rotation.T),
+            "center_of_mass": vector_to_list(view.properties.center_of_mass),
+            "inertia_about_com": matrix_to_list(view.properties.inertia_about_com),
+            "inertia_about_origin": matrix_to_list(view.inertia_about_origin),
+            "principal_moments": vector_to_list(view.principal.moments),
+            "principal_axes": matrix_to_list(view.principal.axes),
         }
         for name, view in result.frames.items()
     }
@@ -110,7 +103,7 @@ def assembly_document(result: "AssemblyResult") -> dict:
             "kind": entry.kind,
             "mass": entry.mass,
             "mass_share": entry.mass_share,
-            "inertia_contribution_about_com": _matrix(entry.inertia_contribution),
+            "inertia_contribution_about_com": matrix_to_list(entry.inertia_contribution),
             "inertia_trace_share": entry.trace_share,
         }
         for entry in result.breakdown
@@ -122,7 +115,7 @@ def assembly_document(result: "AssemblyResult") -> dict:
             "standard_error": o.estimate.standard_error,
             "samples": o.estimate.samples,
             "hits": o.estimate.hits,
-            "sampled_box": _matrix(o.estimate.box),
+            "sampled_box": matrix_to_list(o.estimate.box),
             "undetected_upper_bound": o.estimate.undetected_upper_bound,
             "double_counted_mass": list(o.double_counted_mass),
             "share_of_smaller_volume": o.share_of_smaller_volume,
@@ -138,9 +131,9 @@ def assembly_document(result: "AssemblyResult") -> dict:
                 "name": manifest.name,
                 "manifest": manifest.path,
                 "length_unit": manifest.length_unit,
-                "points": {name: _vector(p) for name, p in manifest.points.items()},
+                "points": {name: vector_to_list(p) for name, p in manifest.points.items()},
                 "frames": {
-                    name: {"origin": _vector(f.origin), "axes": _matrix(f.rotation.T)} for name, f in manifest.frames.items()
+                    name: {"origin": vector_to_list(f.origin), "axes": matrix_to_list(f.rotation.T)} for name, f in manifest.frames.items()
                 },
                 "user_materials": {name: material_to_dict(m) for name, m in manifest.materials.items()},
             },
@@ -159,7 +152,6 @@ def assembly_document(result: "AssemblyResult") -> dict:
 
 def render_assembly_table(doc: dict) -> str:
     """Terminal report of an assembly document: per-item and total blocks, then breakdown and warnings."""
-    text = render_table(doc)
     lines = []
     assembly = doc.get("assembly", {})
     total = doc.get("total") or {}
@@ -181,11 +173,11 @@ def render_assembly_table(doc: dict) -> str:
             )
     for warning in doc.get("warnings", []):
         lines.append(f"WARNING: {warning}")
-    return text + ("\n".join(lines) + "\n" if lines else "")
+    return render_table(doc, lines)
 
 
 def _short(values) -> str:
-    return "  ".join(f"{v: .6g}" for v in values)
+    return "  ".join(f"{v + 0.0: .6g}" for v in values)
 
 
 #: CSV columns: (header with unit, function of a breakdown entry and its body dict).

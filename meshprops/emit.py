@@ -42,13 +42,13 @@ CAUTIONS = (
 )
 
 
-def _vector(values) -> list[float] | None:
+def vector_to_list(values) -> list[float] | None:
     if values is None:
         return None
     return [float(x) for x in np.asarray(values, dtype=np.float64).reshape(-1)]
 
 
-def _matrix(values) -> list[list[float]] | None:
+def matrix_to_list(values) -> list[list[float]] | None:
     if values is None:
         return None
     return [[float(x) for x in row] for row in np.asarray(values, dtype=np.float64)]
@@ -91,21 +91,21 @@ def body_to_dict(body: BodyMeasurement) -> dict:
             "density_assumed": body.density_assumed,
             "volume": properties.volume if properties else None,
             "mass": properties.mass if properties else None,
-            "center_of_mass": _vector(properties.center_of_mass) if properties else None,
-            "inertia_about_com": _matrix(properties.inertia_about_com) if properties else None,
-            "products_of_inertia": dict(zip(("xy", "yz", "zx"), _vector(properties.products_of_inertia)))
+            "center_of_mass": vector_to_list(properties.center_of_mass) if properties else None,
+            "inertia_about_com": matrix_to_list(properties.inertia_about_com) if properties else None,
+            "products_of_inertia": dict(zip(("xy", "yz", "zx"), vector_to_list(properties.products_of_inertia)))
             if properties
             else None,
-            "radii_of_gyration": _vector(properties.radii_of_gyration) if properties else None,
-            "principal_moments": _vector(frame.moments) if frame else None,
-            "principal_axes": _matrix(frame.axes) if frame else None,
+            "radii_of_gyration": vector_to_list(properties.radii_of_gyration) if properties else None,
+            "principal_moments": vector_to_list(frame.moments) if frame else None,
+            "principal_axes": matrix_to_list(frame.axes) if frame else None,
             "principal_symmetry": frame.symmetry if frame else None,
             "principal_axes_unique": list(frame.unique_axes) if frame else None,
             "triangle_inequality": frame.satisfies_triangle_inequality if frame else None,
         }
     )
     if body.inertia_about_point is not None:
-        result["inertia_about_point"] = {"point": _vector(body.point), "tensor": _matrix(body.inertia_about_point)}
+        result["inertia_about_point"] = {"point": vector_to_list(body.point), "tensor": matrix_to_list(body.inertia_about_point)}
     if body.spin is not None:
         result["spin"] = spin_to_dict(body.spin)
     return result
@@ -114,21 +114,21 @@ def body_to_dict(body: BodyMeasurement) -> dict:
 def spin_to_dict(state) -> dict:
     angle = state.angle_between_momentum_and_angular_velocity
     data = {
-        "angular_velocity": _vector(state.angular_velocity),
-        "angular_momentum_about_com": _vector(state.angular_momentum_about_com),
+        "angular_velocity": vector_to_list(state.angular_velocity),
+        "angular_momentum_about_com": vector_to_list(state.angular_momentum_about_com),
         "kinetic_energy": state.rotational_kinetic_energy,
         "angle_between_momentum_and_angular_velocity": angle,
         "angle_between_momentum_and_angular_velocity_deg": math.degrees(angle) if angle is not None else None,
-        "com_velocity": _vector(state.com_velocity),
+        "com_velocity": vector_to_list(state.com_velocity),
         "translational_kinetic_energy": state.translational_kinetic_energy,
         "total_kinetic_energy": state.kinetic_energy,
     }
     if state.point is not None:
         data["about_point"] = {
-            "point": _vector(state.point),
-            "orbital_angular_momentum": _vector(state.orbital_angular_momentum),
-            "spin_angular_momentum": _vector(state.angular_momentum_about_com),
-            "angular_momentum": _vector(state.angular_momentum_about_point),
+            "point": vector_to_list(state.point),
+            "orbital_angular_momentum": vector_to_list(state.orbital_angular_momentum),
+            "spin_angular_momentum": vector_to_list(state.angular_momentum_about_com),
+            "angular_momentum": vector_to_list(state.angular_momentum_about_point),
         }
     return data
 
@@ -179,7 +179,7 @@ def write_atomically(path: str, text: str) -> None:
 
 
 def _fmt(value: float) -> str:
-    return f"{value: .6g}"
+    return f"{value + 0.0: .6g}"  # + 0.0 turns -0.0 into 0.0
 
 
 def _row(label: str, values, unit: str) -> str:
@@ -190,8 +190,12 @@ def _row(label: str, values, unit: str) -> str:
     return f"  {label:<34}{text}  {unit}"
 
 
-def render_table(doc: dict) -> str:
-    """A readable plain-text report of a measurement document (same data as the JSON)."""
+def render_table(doc: dict, extra_lines: list[str] | None = None) -> str:
+    """A readable plain-text report of a measurement document (same data as the JSON).
+
+    ``extra_lines`` (assemblies: named points, frames, breakdown) go before the closing
+    units line and cautions, which always end the report.
+    """
     lines: list[str] = []
     items = list(doc["bodies"]) + ([doc["total"]] if "total" in doc else [])
     for body in items:
@@ -241,6 +245,9 @@ def render_table(doc: dict) -> str:
                 lines.append(_row("angle between L and w", state["angle_between_momentum_and_angular_velocity_deg"], "deg"))
             if "about_point" in state:
                 lines.append(_row("angular momentum about point", state["about_point"]["angular_momentum"], "kg*m^2/s"))
+        lines.append("")
+    if extra_lines:
+        lines.extend(extra_lines)
         lines.append("")
     lines.append("Units SI. Inertia in tensor convention about the centre of mass unless stated.")
     lines.extend(f"CAUTION: {text}" for text in doc.get("cautions", []))

@@ -119,7 +119,8 @@ def meshprops_command(path: Path) -> list[str]:
     """``meshprops measure FILE --json`` through the console script next to this interpreter."""
     script = Path(sys.executable).with_name("meshprops")
     program = [str(script)] if script.exists() else [sys.executable, "-m", "meshprops"]
-    return program + ["measure", str(path), "--json", "--density", "1000"]
+    # Exactly the command of the issue: no --density, so 1000 kg/m^3 is assumed (a line on stderr).
+    return program + ["measure", str(path), "--json"]
 
 
 def reference_command(path: Path) -> list[str]:
