@@ -18,7 +18,7 @@ from .checks import ERROR, Finding, ValidationReport, validate
 from .errors import InputValueError, InvalidMeshError
 from .io import Mesh, load_mesh
 from .mass import MassProperties, check_density
-from .moments import integrate_chunks
+from .moments import integrate_mesh
 from .principal import PrincipalFrame, principal_frame
 from .spin import SpinState, spin
 
@@ -132,7 +132,7 @@ def measure_mesh(
 
         repaired = repair_mesh(mesh)
     measured = repaired.mesh if repaired is not None else mesh
-    moments = integrate_chunks(measured.triangle_chunks())
+    moments = integrate_mesh(measured)
     report = validate(measured, moments)
     if repaired is not None:  # locate every finding in the file as read
         report = replace(report, findings=repaired.findings + repaired.remap(report.findings))

@@ -1537,9 +1537,9 @@ class CheckResult:
 
 def check_mesh(mesh: Mesh) -> CheckResult:
     """Run every check on ``mesh``, self-intersections included whatever its size."""
-    from .moments import integrate_chunks
+    from .moments import integrate_mesh
 
-    moments = integrate_chunks(mesh.triangle_chunks())
+    moments = integrate_mesh(mesh)
     report = validate(mesh, moments, thorough=True)
     return CheckResult(mesh.source, mesh.file_format, mesh.length_unit, mesh.face_count, report)
 

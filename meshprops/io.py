@@ -59,8 +59,27 @@ class Mesh:
         """Number of triangles."""
         return int(self.soup.shape[0] if self.soup is not None else self.faces.shape[0])
 
-    def triangle_chunks(self, chunk_faces: int = DEFAULT_CHUNK_FACES) -> Iterator[np.ndarray]:
+    def reference_point(self) -> np.ndarray:
+        """A point near the part, in the file's unit: the mean corner of the first 1024 faces.
+
+        Integrating about it (see :func:`meshprops.moments.integrate_mesh`) keeps the
+        digits of a part placed far from the file's origin.
+        """
+        if self.face_count == 0:  # e.g. a mesh whose every face a repair dropped
+            return np.zeros(3)
+        if self.soup is not None:
+            corners = np.asarray(self.soup[:1024], dtype=np.float64).reshape(-1, 3)
+        else:
+            corners = self.vertices[self.faces[:1024].reshape(-1)]
+        return corners.mean(axis=0)
+
+    def triangle_chunks(self, chunk_faces: int = DEFAULT_CHUNK_FACES, *, relative_to=None) -> Iterator[np.ndarray]:
         """Yield ``(k, 3, 3)`` float64 triangle corners in metres, ``k <= chunk_faces``.
+
+        With ``relative_to`` (a point in the FILE's unit) each corner is given as
+        ``(x - relative_to)`` converted to metres: the subtraction happens before the
+        unit conversion, so it is exact for nearby points however far the part lies
+        from the origin.
 
         Each chunk is a fresh array indexed ``[face, corner, axis]``; its memory
         is laid out face-last (it is the transpose of a C-ordered
@@ -70,16 +89,23 @@ class Mesh:
         :meth:`coordinate_blocks`).
         """
         scale = np.float64(self.metres_per_unit)
+        shift = None if relative_to is None else np.asarray(relative_to, dtype=np.float64).reshape(3, 1, 1)
         if self.soup is not None:
             for start, block in self.coordinate_blocks(chunk_faces):
                 rows = np.empty((3, 3, block.shape[0]))  # [axis, corner, face]
-                # Widen to float64 first (a strong float64 scale), then scale: as exact as the file.
-                np.multiply(block.transpose(2, 1, 0), scale, out=rows)
+                if shift is None:
+                    # Widen to float64 first (a strong float64 scale), then scale: as exact as the file.
+                    np.multiply(block.transpose(2, 1, 0), scale, out=rows)
+                else:
+                    np.subtract(block.transpose(2, 1, 0), shift, out=rows)
+                    rows *= scale
                 yield rows.transpose(2, 1, 0)
             return
         columns = self.vertices.T
         for start in range(0, self.face_count, chunk_faces):
             rows = np.take(columns, self.faces[start : start + chunk_faces].T, axis=1)  # [axis, corner, face]
+            if shift is not None:
+                rows -= shift
             if scale != 1.0:
                 rows *= scale
             yield rows.transpose(2, 1, 0)

@@ -224,3 +224,15 @@ def integrate_chunks(chunks: Iterable[np.ndarray], origin=None) -> Moments:
     if sums is None:
         return Moments.zero()
     return sums.moments()
+
+
+def integrate_mesh(mesh) -> Moments:
+    """Integrate a :class:`meshprops.io.Mesh` about a reference point near the part.
+
+    Corners are taken relative to :meth:`Mesh.reference_point` in the file's own unit
+    and only then converted to metres, so a part exported kilometres from the origin
+    loses no digits to the unit conversion. The result is about that point (in m).
+    """
+    reference = mesh.reference_point()
+    local = integrate_chunks(mesh.triangle_chunks(relative_to=reference), origin=(0.0, 0.0, 0.0))
+    return Moments(reference * mesh.metres_per_unit, local.volume, local.first, local.second)

@@ -74,3 +74,18 @@ def test_far_binary_stl_in_millimetres_keeps_float32_digits():
     assert properties.mass == pytest.approx(mass, rel=1e-10)
     relative = np.abs(properties.inertia_about_com - principal).max() / principal.max()
     assert relative < 1e-9
+
+
+@pytest.mark.parametrize("offset_mm", [2.0e6, 2.0e7])  # 2 km and 20 km from the origin
+def test_a_millimetre_part_far_away_in_mm_keeps_its_inertia_to_round_off(tmp_path, offset_mm):
+    """The reference point is subtracted in the file's unit before the mm -> m conversion,
+    so even a 1 x 2 x 3 mm block 20 km out keeps its inertia about the centre of mass to
+    a few ulps. Reference: box I_xx = m (b^2 + c^2) / 12 (handbook formula, common practice)."""
+    vertices, faces = shapes.box((1.0, 2.0, 3.0))
+    path = tmp_path / "far_block.obj"
+    writers.write_obj(path, vertices + np.array([offset_mm, -offset_mm / 3.0, offset_mm / 7.0]), faces)
+    body = measure_mesh(load_mesh(path, "mm"), 1000.0)
+    mass = 1000.0 * 6e-9
+    expected = mass * np.array([4.0 + 9.0, 1.0 + 9.0, 1.0 + 4.0]) * 1e-6 / 12.0
+    relative = np.abs(np.diag(body.properties.inertia_about_com) - expected).max() / expected.max()
+    assert relative < 1e-13  # seen: ~4e-16
