@@ -40,8 +40,8 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
     data["name"] = item.name
     data["kind"] = item.kind
     if item.kind == "point_mass":
-        data.pop("source", None)
-        data.pop("mesh", None)
+        data["source"] = None  # not modelled: no mesh file
+        data["mesh"] = None
         spec = item.spec
         data["own_inertia_given"] = spec.inertia_given
         data["box_size"] = vector_to_list(spec.box_size)
@@ -72,13 +72,23 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
     return data
 
 
+def _summed_mesh(bodies: list[dict], length_unit: str) -> dict:
+    meshes = [body["mesh"] for body in bodies if body.get("mesh")]
+    summed = {"format": "assembly", "length_unit": length_unit}
+    for key in ("faces", "vertices", "edges", "shells", "voids", "holes"):
+        values = [mesh.get(key) for mesh in meshes]
+        summed[key] = None if any(v is None for v in values) else int(sum(values))
+    return summed
+
+
 def assembly_document(result: "AssemblyResult") -> dict:
     """The JSON document of an assembly (SI): every item in ``bodies``, the ``total`` with the same keys."""
     manifest = result.manifest
     bodies = [_item_to_dict(item) for item in result.items]
     total = body_to_dict(result.total)
-    total.pop("source", None)
-    total.pop("mesh", None)
+    # The same keys as a body: the manifest is the total's source, its mesh the sum of the bodies' meshes.
+    total["source"] = manifest.path
+    total["mesh"] = _summed_mesh(bodies, manifest.length_unit)
     total["name"] = "total"
     total["kind"] = "total"
     total["inertia_about_named_points"] = {

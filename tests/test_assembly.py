@@ -346,7 +346,7 @@ inertia = [[1e-6, 0, 0], [0, 2e-6, 0], [0, 0, 2.5e-6]]
     names = [body["name"] for body in doc["bodies"]]
     assert names == ["plate", "battery", "sensor"]
     battery = doc["bodies"][1]
-    assert battery["kind"] == "point_mass" and battery["volume"] == 0.0 and "source" not in battery
+    assert battery["kind"] == "point_mass" and battery["volume"] == 0.0 and battery["source"] is None
     # the sensor's own inertia has no size: the total's plausibility cannot be bounded
     assert doc["total"]["plausibility"]["status"] == "not_checked"
     assert doc["bodies"][1]["plausibility"]["status"] == "ok"

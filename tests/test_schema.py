@@ -65,3 +65,21 @@ def test_measure_json_of_a_hollow_part_reports_its_void():
     doc = json.loads(result.stdout)
     jsonschema.validate(doc, SCHEMA)
     assert doc["bodies"][0]["mesh"]["shells"] == 2 and doc["bodies"][0]["mesh"]["voids"] == 1
+
+
+def test_assembly_total_has_every_key_a_mesh_body_has_in_the_core_document(tmp_path):
+    """Issue contract: `total` has the same keys as a body. Compare with a plain mesh body."""
+    manifest = ROOT / "sample_meshes" / "rover.toml"
+    assembly = CliRunner().invoke(app, ["measure", str(manifest), "--json", "--about", "0,0,0", "--spin", "0,0,3"])
+    assert assembly.exit_code == 0, assembly.output
+    doc = json.loads(assembly.stdout)
+    jsonschema.validate(doc, SCHEMA)
+    single = CliRunner().invoke(
+        app, ["measure", str(ROOT / "sample_meshes" / "motor_can.ply"), "--json", "--about", "0,0,0", "--spin", "0,0,3"]
+    )
+    core_keys = set(json.loads(single.stdout)["bodies"][0])
+    assert core_keys <= set(doc["total"]), core_keys - set(doc["total"])
+    assert all("name" in body for body in doc["bodies"])
+    point_masses = [body for body in doc["bodies"] if body["kind"] == "point_mass"]
+    assert point_masses and all(body["mass"] > 0 for body in point_masses)
+    assert doc["total"]["mass"] == pytest.approx(sum(body["mass"] for body in doc["bodies"]), rel=1e-12)
