@@ -1,0 +1,39 @@
+"""The pre-commit hook the repository publishes runs the real command on real files."""
+
+import re
+import shlex
+from pathlib import Path
+
+from typer.testing import CliRunner
+
+from meshprops.cli import app
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def _hook() -> dict:
+    # A tiny reader for our own flat hook file (no YAML dependency): "key: value" lines of one item.
+    hook: dict = {}
+    for line in (ROOT / ".pre-commit-hooks.yaml").read_text().splitlines():
+        match = re.match(r"^[- ] (\w+): (.*)$", line)
+        if match:
+            hook[match.group(1)] = match.group(2).strip().strip("'")
+    return hook
+
+
+def test_hook_runs_meshprops_check_on_mesh_files():
+    hook = _hook()
+    assert hook["id"] == "meshprops-check"
+    assert shlex.split(hook["entry"]) == ["meshprops", "check"]
+    pattern = re.compile(hook["files"])
+    assert all(pattern.search(name) for name in ("a.stl", "b.OBJ", "c.ply"))
+    assert not pattern.search("notes.txt")
+
+
+def test_hook_passes_sound_exports_and_fails_broken_ones():
+    entry = shlex.split(_hook()["entry"])[1:]
+    sound = sorted(str(p) for p in (ROOT / "sample_meshes").glob("*.stl"))
+    broken = sorted(str(p) for p in (ROOT / "tests" / "meshes" / "invalid").glob("open_edges__*.stl"))
+    assert sound and broken
+    assert CliRunner().invoke(app, [*entry, *sound, "--units", "mm"]).exit_code == 0
+    assert CliRunner().invoke(app, [*entry, *sound, *broken, "--units", "mm"]).exit_code == 1
