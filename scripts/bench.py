@@ -308,7 +308,7 @@ def main(argv: list[str] | None = None) -> int:
         pass
     print(f"meshprops benchmark: {os.cpu_count()} CPUs, {platform.machine()}, {versions}")
     print(f"ours:      {' '.join(meshprops_command(Path('FILE')))}")
-    print(f"reference: python -c <trimesh.load(FILE).mass_properties> FILE   (trimesh's default load, vertex merge included)")
+    print("reference: python -c <trimesh.load(FILE).mass_properties> FILE   (trimesh's default load, vertex merge included)")
     print(f"medians of {repeats} fresh processes per side, alternating; (min-max) in brackets")
     print(f"load average at start: {load_average()} (other work on the machine slows both sides)\n")
 

@@ -8,12 +8,17 @@ The meshes themselves come from :mod:`meshprops.shapes` (closed, outward).
 from __future__ import annotations
 
 import os
+import sys
 from pathlib import Path
 
 import numpy as np
 import pytest
 
 from meshprops import shapes, writers
+
+# The fixture catalogue of broken and sound meshes lives in tests/meshes/catalogue.py
+# (also run as a script to write the example folders): make it importable as meshes.catalogue.
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 #: Every file format the loaders read, as written by :func:`write_mesh_file`.
 MESH_FORMATS = ("stl-binary", "stl-ascii", "obj", "ply-ascii", "ply-binary", "ply-binary-big-endian")

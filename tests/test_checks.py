@@ -5,9 +5,7 @@ numbers, triangle crossing) against independent references; the example folders 
 
 from __future__ import annotations
 
-import importlib.util
 import json
-import sys
 from pathlib import Path
 
 import numpy as np
@@ -19,22 +17,11 @@ from typer.testing import CliRunner
 from meshprops import checks, mesh_from_arrays, mesh_from_triangles, shapes, writers
 from meshprops.checks import ERROR, WARNING, check_mesh, validate
 from meshprops.cli import app
+from meshes import catalogue  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
 from meshprops.moments import integrate_chunks
 
 HERE = Path(__file__).resolve().parent
 
-def _load_catalogue():
-    """tests/meshes/catalogue.py, loaded by path (the tests folder is not a package)."""
-    name = "meshprops_test_catalogue"
-    if name not in sys.modules:
-        spec = importlib.util.spec_from_file_location(name, HERE / "meshes" / "catalogue.py")
-        module = importlib.util.module_from_spec(spec)
-        sys.modules[name] = module
-        spec.loader.exec_module(module)
-    return sys.modules[name]
-
-
-catalogue = _load_catalogue()
 
 CASES = catalogue.cases()
 runner = CliRunner()

@@ -5,9 +5,7 @@ parallel-axis theorem); what cannot be repaired safely stays an error."""
 
 from __future__ import annotations
 
-import importlib.util
 import json
-import sys
 from pathlib import Path
 
 import numpy as np
@@ -19,6 +17,7 @@ from typer.testing import CliRunner
 from meshprops import mesh_from_arrays, measure_mesh, shapes, writers
 from meshprops.checks import ERROR, WARNING
 from meshprops.cli import app
+from meshes import catalogue  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
 from meshprops.repair import repair_mesh
 
 HERE = Path(__file__).resolve().parent
@@ -26,18 +25,6 @@ runner = CliRunner()
 DENSITY = 2700.0  # aluminium, kg/m^3 (common practice)
 
 
-def _load_catalogue():
-    """tests/meshes/catalogue.py, loaded by path (the tests folder is not a package)."""
-    name = "meshprops_test_catalogue"
-    if name not in sys.modules:
-        spec = importlib.util.spec_from_file_location(name, HERE / "meshes" / "catalogue.py")
-        module = importlib.util.module_from_spec(spec)
-        sys.modules[name] = module
-        spec.loader.exec_module(module)
-    return sys.modules[name]
-
-
-catalogue = _load_catalogue()
 CASES = catalogue.cases()
 REPAIRABLE = [c for c in CASES if c.solid]
 UNREPAIRABLE = [c for c in CASES if not c.solid]
