@@ -51,7 +51,7 @@ from .materials import Material, find_material, user_material
 from .overlap import DEFAULT_SAMPLES, Overlap, find_overlaps
 from .principal import PrincipalFrame, principal_frame
 from .rotations import nearest_rotation, rotation_from_axis_angle, rotation_from_rpy
-from .simulators import Plausibility, check_plausibility
+from .simulators import Plausibility, check_against_known_extent, check_plausibility
 from .spin import spin
 from .units import LENGTH_UNITS, metres_per
 
@@ -163,7 +163,7 @@ class _Reader:
             raise self.fail(key, f"expected {what}, got {_kind(value)} {value!r}")
         value = float(value)
         if not math.isfinite(value):
-            raise self.fail(key, f"expected a finite {what}, got {value!r}")
+            raise self.fail(key, f"expected {what} (finite), got {value!r}")
         if positive and value <= 0:
             raise self.fail(key, f"expected {what} > 0, got {value!r}")
         return value
@@ -576,8 +576,12 @@ def resolve_point(manifest: Manifest, text) -> np.ndarray | None:
     return vector * manifest.metres_per_unit
 
 
-def _principal_extent(items: list[AssemblyItem], axes: np.ndarray) -> np.ndarray | None:
-    """Extent (m) of the items' geometry along each of ``axes`` (rows); ``None`` if some item's extent is unknown."""
+def _principal_extent(items: list[AssemblyItem], axes: np.ndarray, *, known_only: bool = False) -> np.ndarray | None:
+    """Extent (m) of the items' geometry along each of ``axes`` (rows).
+
+    ``None`` if some item's extent is unknown (a point mass with a typed inertia and no
+    box), unless ``known_only``: then such an item counts by its position alone.
+    """
     low = np.full(3, np.inf)
     high = np.full(3, -np.inf)
     for item in items:
@@ -592,7 +596,7 @@ def _principal_extent(items: list[AssemblyItem], axes: np.ndarray) -> np.ndarray
             if spec.box_size is not None:
                 half = spec.box_size / 2.0
                 corners = spec.position + np.array([[sx, sy, sz] for sx in (-1, 1) for sy in (-1, 1) for sz in (-1, 1)]) * half
-            elif spec.inertia_given:
+            elif spec.inertia_given and not known_only:
                 return None  # own inertia without a size: its spread is unknown
             else:
                 corners = spec.position[None, :]
@@ -796,6 +800,23 @@ def measure_assembly(
 
     extent = _principal_extent(items, frame.axes)
     plausibility = check_plausibility(properties.mass, frame.moments, extent)
+    if extent is None:  # a typed inertia somewhere: still compare with what the known geometry allows
+        plausibility = check_against_known_extent(
+            properties.mass, frame.moments, _principal_extent(items, frame.axes, known_only=True)
+        )
+    checked_items = []
+    for item in items:
+        if item.plausibility is not None and item.plausibility.status == "not_checked" and item.kind == "point_mass":
+            moments = item.measurement.principal.moments
+            bound = _principal_extent(items, item.measurement.principal.axes, known_only=True)
+            item = replace(item, plausibility=check_against_known_extent(item.properties.mass, moments, bound))
+        checked_items.append(item)
+    items = checked_items
+    for name, check in [(item.name, item.plausibility) for item in items] + [("total", plausibility)]:
+        if check is not None and check.status == "suspicious":
+            text = f"{name}: implausible inertia: {check.message}"
+            warnings.append(text)
+            findings.append(Finding("implausible_inertia", WARNING, 1, text))
     total = _with_views(
         replace(total_stub, validation=_total_report(findings), properties=properties, principal=frame),
         point,

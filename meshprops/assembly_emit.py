@@ -35,6 +35,14 @@ ASSEMBLY_CONVENTIONS = {
 }
 
 
+#: Keys only a mesh body has values for; point masses and the total carry them as null, so that
+#: every item and the total have the same keys.
+MESH_BODY_KEYS = (
+    "material", "density_basis", "measured_mass", "implied_density", "implied_density_ratio_to_material",
+    "placement", "body_frame",
+)  # fmt: skip
+
+
 def _item_to_dict(item: "AssemblyItem") -> dict:
     data = body_to_dict(item.measurement)
     data["name"] = item.name
@@ -43,6 +51,7 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
         data["source"] = None  # not modelled: no mesh file
         data["mesh"] = None
         spec = item.spec
+        data.update(dict.fromkeys(MESH_BODY_KEYS))
         data["own_inertia_given"] = spec.inertia_given
         data["box_size"] = vector_to_list(spec.box_size)
     else:
@@ -89,6 +98,7 @@ def assembly_document(result: "AssemblyResult") -> dict:
     # The same keys as a body: the manifest is the total's source, its mesh the sum of the bodies' meshes.
     total["source"] = manifest.path
     total["mesh"] = _summed_mesh(bodies, manifest.length_unit)
+    total.update(dict.fromkeys(MESH_BODY_KEYS))
     total["name"] = "total"
     total["kind"] = "total"
     total["inertia_about_named_points"] = {
@@ -205,9 +215,9 @@ CSV_COLUMNS = (
     ("Ixx about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][0][0]),
     ("Iyy about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][1][1]),
     ("Izz about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][2][2]),
-    ("Ixy about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][0][1]),
-    ("Iyz about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][1][2]),
-    ("Izx about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][2][0]),
+    ("Ixy about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][0][1]),
+    ("Iyz about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][1][2]),
+    ("Izx about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][2][0]),
     ("inertia trace share [1]", lambda e, b: e["inertia_trace_share"]),
 )
 

@@ -1347,27 +1347,21 @@ def unit_findings(mesh: Mesh, extent: np.ndarray) -> list[Finding]:
     """``implausible_size`` (warning) when the part's size suggests the declared unit is wrong.
 
     ``extent`` (3,) is the bounding-box size in metres. A part whose largest side
-    is outside :data:`PLAUSIBLE_EXTENT_M` gets a suggestion: the first of mm, m,
-    in, cm, ft that would make it between 5 mm and 5 m.
+    is outside :data:`PLAUSIBLE_EXTENT_M` gets suggestions: each of mm, m, in, cm,
+    ft that would make it between 5 mm and 5 m.
     """
     largest = float(np.max(extent)) if extent.size else 0.0
     low, high = PLAUSIBLE_EXTENT_M
     if largest == 0.0 or low <= largest <= high:
         return []
     declared = mesh.length_unit
-    suggestion = ""
+    candidates = []  # units that would make the part between 5 mm and 5 m: the usual slips are x1000 and x25.4
     for unit in ("mm", "m", "in", "cm", "ft"):
-        if unit == declared:
-            continue
         factor = LENGTH_UNITS[unit] / mesh.metres_per_unit
-        if 5e-3 <= largest * factor <= 5.0:
-            ratio = factor if factor >= 1 else 1.0 / factor
-            direction = "larger" if factor > 1 else "smaller"
-            suggestion = (
-                f"; if the file is in {unit} ({ratio:g} times {direction}) it would be {largest * factor:.4g} m: "
-                f"rerun with --units {unit}"
-            )
-            break
+        if unit != declared and 5e-3 <= largest * factor <= 5.0 and len(candidates) < 2:
+            ratio, direction = (factor, "larger") if factor > 1 else (1.0 / factor, "smaller")
+            candidates.append(f"{largest * factor:.4g} m in {unit} ({ratio:g} times {direction}: --units {unit})")
+    suggestion = f"; it would be {' or '.join(candidates)}" if candidates else ""
     return [
         Finding(
             "implausible_size",

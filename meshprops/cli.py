@@ -65,7 +65,7 @@ def _angular_velocity(spin_text, rpm, axis_text):
             raise InputValueError("--axis", "to be used with --rpm", axis_text)
         return None
     if axis_text is None:
-        raise InputValueError("--rpm", "an --axis AX,AY,AZ to spin about", None)
+        raise InputValueError("--rpm", "an --axis AX,AY,AZ to spin about", "no --axis")
     axis = parse_vector(axis_text, "--axis")
     length = float((axis @ axis) ** 0.5)
     if length == 0.0:

@@ -182,6 +182,10 @@ def _fmt(value: float) -> str:
     return f"{value + 0.0: .6g}"  # + 0.0 turns -0.0 into 0.0
 
 
+def _matrix_row(row) -> str:
+    return "    " + "".join(f"{value + 0.0:>15.6g}" for value in row)  # aligned columns
+
+
 def _row(label: str, values, unit: str) -> str:
     if isinstance(values, (list, tuple)):
         text = "  ".join(_fmt(v) for v in values)
@@ -209,7 +213,7 @@ def render_table(doc: dict, extra_lines: list[str] | None = None) -> str:
             continue
         mesh = body.get("mesh")
         if mesh:
-            lines.append(f"  {'mesh':<34}{mesh['format']}, {mesh['faces']} faces, read in {mesh['length_unit']}")
+            lines.append(f"  {'mesh':<34}{mesh['format']}, {mesh['faces']} faces, coordinates in {mesh['length_unit']}")
         if body.get("density") is not None:
             assumed = "  (ASSUMED: no density given)" if body.get("density_assumed") else ""
             lines.append(_row("density", body["density"], "kg/m^3") + assumed)
@@ -219,7 +223,7 @@ def render_table(doc: dict, extra_lines: list[str] | None = None) -> str:
         lines.append(_row("centre of mass (x y z)", body["center_of_mass"], "m"))
         lines.append("  inertia tensor about centre of mass, input axes (kg*m^2; off-diagonals = -products):")
         for row in body["inertia_about_com"]:
-            lines.append("      " + "  ".join(_fmt(v) for v in row))
+            lines.append(_matrix_row(row))
         products = body.get("products_of_inertia")
         if products:
             lines.append(_row("products of inertia Pxy Pyz Pzx", [products[k] for k in ("xy", "yz", "zx")], "kg*m^2"))
@@ -235,7 +239,7 @@ def render_table(doc: dict, extra_lines: list[str] | None = None) -> str:
         if about:
             lines.append(_row("inertia about point", about["point"], "m"))
             for row in about["tensor"]:
-                lines.append("      " + "  ".join(_fmt(v) for v in row))
+                lines.append(_matrix_row(row))
         state = body.get("spin")
         if state:
             lines.append(_row("angular velocity", state["angular_velocity"], "rad/s"))
@@ -309,7 +313,7 @@ def render_check_table(doc: dict) -> str:
         state = "valid" if entry["valid"] else "INVALID"
         lines.append(
             f"{entry['source']}  [{state}]  {mesh['faces']} faces, {mesh['vertices']} vertices, "
-            f"{mesh['shells']} shell(s), read in {mesh['length_unit']}"
+            f"{mesh['shells']} shell(s), coordinates in {mesh['length_unit']}"
         )
         if not entry["findings"]:
             lines.append("  no findings")

@@ -81,7 +81,8 @@ class Plausibility:
         along the principal axes (ascending moments order)
     extent : (3,) m or ``None``, extent of the geometry along the same axes (``None``: unknown)
     ratio : (3,) or ``None``, ``equivalent_box / extent``
-    status : ``"ok"``, ``"unusual"`` (all ratios < LOW_RATIO), ``"impossible"`` (some ratio > sqrt 3)
+    status : ``"ok"``, ``"unusual"`` (all ratios < LOW_RATIO), ``"impossible"`` (some ratio > sqrt 3),
+        ``"suspicious"`` (extent partly unknown and the box exceeds sqrt 3 x the known geometry)
         or ``"not_checked"`` (no extent known, or zero inertia)
     message : one sentence
     """
@@ -125,6 +126,29 @@ def check_plausibility(mass: float, principal_moments, extent) -> Plausibility:
             "or a unit slip in the inertia",
         )  # fmt: skip
     return Plausibility(box, extent, ratio, "ok", "equivalent box fits the extent")
+
+
+def check_against_known_extent(mass: float, principal_moments, known_extent) -> Plausibility:
+    """Plausibility where part of the geometry's extent is unknown (an inertia typed by hand).
+
+    ``known_extent`` (m) is the extent of everything whose size IS known (the assembly's
+    meshes, boxes and point positions). An equivalent box larger than sqrt 3 times that is
+    ``"suspicious"``: not impossible (the unknown item may really be that large), but the
+    typical sign of a placeholder inertia such as an identity matrix, or of a unit slip.
+    """
+    box = equivalent_box(mass, principal_moments)
+    extent = np.asarray(known_extent, dtype=np.float64)
+    if not np.any(box > 0) or not np.all(extent > 0):
+        return Plausibility(box, None, None, "not_checked", "extent of the geometry unknown (inertia given by hand)")
+    ratio = box / extent
+    if np.any(ratio > math.sqrt(3.0) * (1.0 + HIGH_SLACK)):
+        worst = int(np.argmax(ratio))
+        return Plausibility(
+            box, None, ratio, "suspicious",
+            f"equivalent box side {box[worst]:.4g} m is {ratio[worst]:.3g} x the extent {extent[worst]:.4g} m of the "
+            "known geometry along that principal axis: a placeholder inertia or a unit slip? (extent partly unknown)",
+        )  # fmt: skip
+    return Plausibility(box, None, ratio, "not_checked", "extent partly unknown; equivalent box fits the known geometry")
 
 
 def plausibility_to_dict(check: Plausibility) -> dict:

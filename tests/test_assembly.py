@@ -559,3 +559,44 @@ def test_cli_table_and_csv_outputs(three_parts, tmp_path):
     out = runner.invoke(app, ["measure", str(three_parts), "--format", "csv", "--output", str(target)])
     assert out.exit_code == 0 and out.stdout == ""
     assert target.read_text().splitlines()[0].startswith("name,kind,material,density [kg/m^3]")
+
+
+def test_a_placeholder_point_mass_inertia_is_flagged_even_without_a_size(tmp_path):
+    """Issue 3 item 5: the equivalent-box check must catch placeholder values. An identity
+    inertia (1 kg*m^2) on a 0.2 kg item means a uniform box about 5.5 m across (a_k =
+    sqrt(6 (I_i + I_j - I_k) / m), box formula, common practice), in an assembly 0.16 m long."""
+    write_stl(tmp_path, "plate.stl", shapes.box((160.0, 100.0, 4.0)))
+    path = write_manifest(tmp_path, """
+[assembly]
+name = "placeholder"
+length_unit = "mm"
+
+[[body]]
+name = "plate"
+mesh = "plate.stl"
+density = 2700
+
+[[point_mass]]
+name = "motor"
+mass = 0.2
+position = [10, 0, 20]
+inertia = [[1, 0, 0], [0, 1, 0], [0, 0, 1]]
+
+[[point_mass]]
+name = "sensor"
+mass = 0.02
+position = [-10, 0, 20]
+inertia = [[2e-6, 0, 0], [0, 2e-6, 0], [0, 0, 2e-6]]
+""")
+    result = CliRunner().invoke(app, ["measure", str(path), "--json"])
+    assert result.exit_code == 0, result.output
+    doc = json.loads(result.stdout)
+    status = {body["name"]: body["plausibility"]["status"] for body in doc["bodies"]}
+    assert status == {"plate": "ok", "motor": "suspicious", "sensor": "not_checked"}
+    assert doc["total"]["plausibility"]["status"] == "suspicious"
+    flagged = [f["message"] for f in doc["total"]["findings"] if f["code"] == "implausible_inertia"]
+    assert any(message.startswith("motor:") for message in flagged)
+    assert not any(message.startswith("sensor:") for message in flagged)
+    side = math.sqrt(6.0 * (1.0 + 1.0 - 1.0) / 0.2)
+    motor = next(body for body in doc["bodies"] if body["name"] == "motor")
+    assert motor["plausibility"]["equivalent_box"] == pytest.approx([side] * 3, rel=1e-12)

@@ -104,7 +104,14 @@ def test_a_millimetre_part_declared_in_metres_gets_a_unit_warning_that_names_mm(
 def test_a_metre_part_declared_in_millimetres_gets_a_unit_warning_that_names_m():
     vertices, faces = shapes.box((0.12, 0.08, 0.04))
     (finding,) = _report(mesh_from_arrays(vertices, faces, length_unit="mm")).findings
-    assert finding.code == "implausible_size" and finding.message.endswith("--units m")
+    assert finding.code == "implausible_size" and "0.12 m in m (1000 times larger: --units m)" in finding.message
+
+
+def test_a_part_too_small_in_mm_is_offered_both_usual_slips_metres_and_inches():
+    vertices, faces = shapes.box((1.5, 1.0, 0.5))  # a 1.5 in part read as mm: 1.5 mm
+    (finding,) = _report(mesh_from_arrays(vertices, faces, length_unit="mm")).findings
+    assert "1.5 m in m (1000 times larger: --units m)" in finding.message
+    assert "0.0381 m in in (25.4 times larger: --units in)" in finding.message
 
 
 def test_an_inch_part_read_as_millimetres_is_not_flagged_but_a_huge_inch_part_is():

@@ -79,6 +79,8 @@ def test_assembly_total_has_every_key_a_mesh_body_has_in_the_core_document(tmp_p
     )
     core_keys = set(json.loads(single.stdout)["bodies"][0])
     assert core_keys <= set(doc["total"]), core_keys - set(doc["total"])
+    for body in doc["bodies"]:  # and literally the keys of every assembly item
+        assert set(body) - {"own_inertia_given", "box_size"} <= set(doc["total"]), set(body) - set(doc["total"])
     assert all("name" in body for body in doc["bodies"])
     point_masses = [body for body in doc["bodies"] if body["kind"] == "point_mass"]
     assert point_masses and all(body["mass"] > 0 for body in point_masses)
