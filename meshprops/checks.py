@@ -1539,8 +1539,22 @@ def check_mesh(mesh: Mesh) -> CheckResult:
 
 
 def check_files(paths, length_unit: str = "mm") -> list[CheckResult]:
-    """Load every file first (an unreadable one fails the whole call), then check each."""
+    """Load every file first (an unreadable one fails the whole call), then check each.
+
+    An assembly manifest (``.toml``) stands for the mesh files it lists, each read in
+    its body's own length unit (``length_unit`` does not apply to them); a file used by
+    several bodies is checked once.
+    """
     from .io import load_mesh
 
-    meshes = [load_mesh(path, length_unit) for path in paths]
+    files: list[tuple[str, str]] = []
+    for path in paths:
+        if str(path).lower().endswith(".toml"):
+            from .assembly import load_manifest
+
+            files.extend((body.mesh_path, body.length_unit) for body in load_manifest(path).bodies)
+        else:
+            files.append((str(path), length_unit))
+    files = list(dict.fromkeys(files))
+    meshes = [load_mesh(path, unit) for path, unit in files]
     return [check_mesh(mesh) for mesh in meshes]

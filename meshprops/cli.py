@@ -194,7 +194,7 @@ EXIT_WARNINGS = 3
 @app.command()
 @one_line_errors
 def check(
-    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY) to validate.", show_default=False)],
+    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY) to validate, or assembly manifests (.toml): their meshes.", show_default=False)],
     units: Annotated[str, typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft.")] = "mm",
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document instead of a table.")] = False,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,

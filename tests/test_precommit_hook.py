@@ -37,3 +37,24 @@ def test_hook_passes_sound_exports_and_fails_broken_ones():
     assert sound and broken
     assert CliRunner().invoke(app, [*entry, *sound, "--units", "mm"]).exit_code == 0
     assert CliRunner().invoke(app, [*entry, *sound, *broken, "--units", "mm"]).exit_code == 1
+
+
+def test_check_accepts_a_manifest_and_checks_each_mesh_it_lists_once(tmp_path):
+    import json
+
+    from meshprops import shapes, writers
+
+    writers.write_obj(tmp_path / "good.obj", *shapes.box((10.0, 20.0, 30.0)))
+    vertices, faces = shapes.box((10.0, 20.0, 30.0))
+    writers.write_obj(tmp_path / "open.obj", vertices, faces[1:])  # one face missing: a hole
+    (tmp_path / "kit.toml").write_text(
+        '[assembly]\nname = "kit"\nlength_unit = "mm"\n\n'
+        '[[body]]\nname = "a"\nmesh = "good.obj"\ndensity = 1000\n\n'
+        '[[body]]\nname = "b"\nmesh = "good.obj"\ndensity = 1000\ntranslation = [50, 0, 0]\n\n'
+        '[[body]]\nname = "c"\nmesh = "open.obj"\ndensity = 1000\n'
+    )
+    result = CliRunner().invoke(app, ["check", str(tmp_path / "kit.toml"), "--json"])
+    assert result.exit_code == 1, result.output
+    doc = json.loads(result.stdout)
+    assert [Path(f["source"]).name for f in doc["files"]] == ["good.obj", "open.obj"]
+    assert [f["valid"] for f in doc["files"]] == [True, False]
