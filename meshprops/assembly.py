@@ -508,6 +508,11 @@ class AssemblyItem:
         triangles = self.mesh.triangles()
         return triangles @ self.placement.rotation.T + self.placement.translation
 
+    def placed_corner_chunks(self):
+        """Yield ``(k, 3)`` corners of the mesh in the assembly frame (m), chunk by chunk."""
+        for chunk in self.mesh.triangle_chunks():
+            yield chunk.reshape(-1, 3) @ self.placement.rotation.T + self.placement.translation
+
 
 @dataclass(frozen=True, slots=True, eq=False)
 class BreakdownEntry:
@@ -586,8 +591,7 @@ def _principal_extent(items: list[AssemblyItem], axes: np.ndarray, *, known_only
     high = np.full(3, -np.inf)
     for item in items:
         if item.kind == "mesh":
-            for chunk in item.mesh.triangle_chunks():
-                placed = chunk.reshape(-1, 3) @ item.placement.rotation.T + item.placement.translation
+            for placed in item.placed_corner_chunks():
                 projected = placed @ axes.T
                 low = np.minimum(low, projected.min(axis=0))
                 high = np.maximum(high, projected.max(axis=0))
@@ -845,8 +849,7 @@ def _total_report(findings) -> ValidationReport:
 def _placed_box(item: AssemblyItem) -> np.ndarray:
     low = np.full(3, np.inf)
     high = np.full(3, -np.inf)
-    for chunk in item.mesh.triangle_chunks():
-        placed = chunk.reshape(-1, 3) @ item.placement.rotation.T + item.placement.translation
+    for placed in item.placed_corner_chunks():
         low = np.minimum(low, placed.min(axis=0))
         high = np.maximum(high, placed.max(axis=0))
     return np.array([low, high])

@@ -101,6 +101,17 @@ def equivalent_box(mass: float, principal_moments) -> np.ndarray:
     return np.sqrt(np.clip(squares, 0.0, None))
 
 
+def _worst_excess(box: np.ndarray, extent: np.ndarray) -> int | None:
+    """Principal axis on which ``box`` exceeds sqrt 3 times ``extent`` the most, or ``None``.
+
+    Any mass inside an extent e has coordinate variance <= e^2/4, so the equivalent box
+    side (variance a^2/12) is at most sqrt 3 e."""
+    ratio = box / extent
+    if np.any(ratio > math.sqrt(3.0) * (1.0 + HIGH_SLACK)):
+        return int(np.argmax(ratio))
+    return None
+
+
 def check_plausibility(mass: float, principal_moments, extent) -> Plausibility:
     """Compare the equivalent box with the geometry's ``extent`` along the principal axes (m)."""
     box = equivalent_box(mass, principal_moments)
@@ -110,8 +121,8 @@ def check_plausibility(mass: float, principal_moments, extent) -> Plausibility:
     if not np.any(box > 0) or not np.all(extent > 0):
         return Plausibility(box, extent, None, "not_checked", "no extent or no inertia to compare")
     ratio = box / extent
-    if np.any(ratio > math.sqrt(3.0) * (1.0 + HIGH_SLACK)):
-        worst = int(np.argmax(ratio))
+    worst = _worst_excess(box, extent)
+    if worst is not None:
         return Plausibility(
             box, extent, ratio, "impossible",
             f"equivalent box side {box[worst]:.4g} m is {ratio[worst]:.3g} x the extent {extent[worst]:.4g} m "
@@ -141,8 +152,8 @@ def check_against_known_extent(mass: float, principal_moments, known_extent) -> 
     if not np.any(box > 0) or not np.all(extent > 0):
         return Plausibility(box, None, None, "not_checked", "extent of the geometry unknown (inertia given by hand)")
     ratio = box / extent
-    if np.any(ratio > math.sqrt(3.0) * (1.0 + HIGH_SLACK)):
-        worst = int(np.argmax(ratio))
+    worst = _worst_excess(box, extent)
+    if worst is not None:
         return Plausibility(
             box, None, ratio, "suspicious",
             f"equivalent box side {box[worst]:.4g} m is {ratio[worst]:.3g} x the extent {extent[worst]:.4g} m of the "
