@@ -2,13 +2,14 @@
 
 Pure library core (numpy in, frozen dataclasses out); the ``meshprops`` command
 is a thin layer over it. All quantities are SI (m, kg, s) in the input frame.
+
+The package is laid out as the data flows (see DEVELOPERS.md): ``io`` (files -> Mesh),
+``geometry``, ``physics`` (moments -> mass properties -> views), ``validation``,
+``measure`` (bodies and assemblies), ``batch``, ``output`` and ``cli``. The names below are
+the public API; nothing inside the package imports this module.
 """
 
-__version__ = "0.1.0"
-
-from .body import BodyMeasurement, measure_file, measure_mesh  # noqa: E402
-from .checks import Finding, ValidationReport, validate  # noqa: E402
-from .errors import (  # noqa: E402
+from .errors import (
     InputValueError,
     InvalidMeshError,
     MeshFileError,
@@ -16,17 +17,27 @@ from .errors import (  # noqa: E402
     PhysicsError,
     UnitError,
 )
-from .io import Mesh, load_mesh, mesh_from_arrays, mesh_from_triangles  # noqa: E402
-from .mass import MassProperties, combine, rotate_tensor  # noqa: E402
-from .moments import Moments, integrate_chunks, integrate_triangles  # noqa: E402
-from .principal import PrincipalFrame, principal_frame  # noqa: E402
-from .spin import SpinState, spin  # noqa: E402
+from .io import Mesh, load_mesh, mesh_from_arrays, mesh_from_triangles
+from .measure.body import BodyMeasurement, measure_file, measure_mesh
+from .measure.options import MeasureOptions
+from .physics.mass import MassProperties, combine, rotate_tensor
+from .physics.moments import Moments, integrate_chunks, integrate_triangles
+from .physics.principal import PrincipalFrame, principal_frame
+from .physics.spin import SpinState, spin
+from .validation.checks import validate
+from .validation.findings import Finding, ValidationReport
+from .version import __version__
 
-_LAZY = {"load_manifest": "assembly", "measure_manifest": "assembly", "measure_assembly": "assembly"}
+_LAZY = {
+    "load_manifest": "measure.manifest",
+    "measure_manifest": "measure.assembly",
+    "measure_assembly": "measure.assembly",
+    "measure_files": "batch.runner",
+}
 
 
 def __getattr__(name: str):
-    """Assembly functions load on first use, so that measuring one mesh does not import them."""
+    """Assembly and batch functions load on first use, so that measuring one mesh does not import them."""
     if name in _LAZY:
         import importlib
 
@@ -35,9 +46,9 @@ def __getattr__(name: str):
 
 
 __all__ = [
-    "BodyMeasurement", "Finding", "InputValueError", "InvalidMeshError", "MassProperties", "Mesh",
-    "MeshFileError", "MeshpropsError", "Moments", "PhysicsError", "PrincipalFrame", "SpinState",
-    "UnitError", "ValidationReport", "combine", "integrate_chunks", "integrate_triangles", "load_mesh",
-    "measure_file", "measure_mesh", "mesh_from_arrays", "mesh_from_triangles", "principal_frame",
-    "rotate_tensor", "spin", "validate", "load_manifest", "measure_manifest", "measure_assembly",
+    "BodyMeasurement", "Finding", "InputValueError", "InvalidMeshError", "MassProperties", "MeasureOptions",
+    "Mesh", "MeshFileError", "MeshpropsError", "Moments", "PhysicsError", "PrincipalFrame", "SpinState",
+    "UnitError", "ValidationReport", "__version__", "combine", "integrate_chunks", "integrate_triangles",
+    "load_mesh", "measure_file", "measure_mesh", "mesh_from_arrays", "mesh_from_triangles", "principal_frame",
+    "rotate_tensor", "spin", "validate", "load_manifest", "measure_manifest", "measure_assembly", "measure_files",
 ]  # fmt: skip

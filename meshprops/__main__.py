@@ -1,6 +1,6 @@
 """``python -m meshprops`` runs the command-line tool."""
 
-from .cli import main
+from .cli.app import main
 
 if __name__ == "__main__":
     main()

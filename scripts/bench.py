@@ -17,7 +17,7 @@ What it does, in one run:
 3. In this process: reading the file alone (memory map + touching every byte),
    loading it (``meshprops.io.load_mesh``), integrating it
    (``meshprops.moments.integrate_chunks(mesh.triangle_chunks())``) and
-   validating it (``meshprops.checks.validate``), with the integration/read ratio.
+   validating it (``meshprops.validate``), with the integration/read ratio.
 
 Usage (from the repository root)::
 
@@ -42,10 +42,12 @@ from pathlib import Path
 
 import numpy as np
 
-from meshprops import checks, shapes
-from meshprops.io import STL_HEADER_BYTES, load_mesh
-from meshprops.moments import integrate_chunks
-from meshprops.writers import write_binary_stl
+from meshprops.geometry import shapes
+from meshprops.io import load_mesh
+from meshprops.io.mesh import STL_HEADER_BYTES
+from meshprops.io.writers import write_binary_stl
+from meshprops.physics.moments import integrate_chunks
+from meshprops.validation.checks import validate
 
 REPOSITORY = Path(__file__).resolve().parent.parent
 DEFAULT_DATA = REPOSITORY / "bench_data"
@@ -220,7 +222,7 @@ def in_process(path: Path, repeats: int) -> dict:
     read_times, _ = timed(lambda: read_only(path), repeats)
     load_times, mesh = timed(lambda: load_mesh(path, "mm"), repeats)
     integrate_times, moments = timed(lambda: integrate_chunks(mesh.triangle_chunks()), repeats)
-    validate_times, report = timed(lambda: checks.validate(mesh, moments), repeats)
+    validate_times, report = timed(lambda: validate(mesh, moments), repeats)
     return {
         "read": read_times,
         "load": load_times,

@@ -11,8 +11,8 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from meshprops import shapes
-from meshprops.writers import write_ascii_stl, write_binary_stl, write_obj, write_ply
+from meshprops.geometry import shapes
+from meshprops.io.writers import write_ascii_stl, write_binary_stl, write_obj, write_ply
 
 OUT = Path(__file__).resolve().parent.parent / "sample_meshes"
 

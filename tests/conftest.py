@@ -14,7 +14,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from meshprops import shapes, writers
+from meshprops.geometry import shapes
+from meshprops.io import writers
 
 # The fixture catalogue of broken and sound meshes lives in tests/meshes/catalogue.py
 # (also run as a script to write the example folders): make it importable as meshes.catalogue.

@@ -22,13 +22,15 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from meshprops import shapes
-from meshprops.assembly import load_manifest, measure_assembly, measure_manifest, parse_manifest
-from meshprops.assembly_emit import assembly_document, breakdown_csv
 from meshprops.cli import app
+from meshprops.geometry import shapes
 from meshprops.io import mesh_from_arrays
-from meshprops.body import measure_mesh
-from meshprops.writers import write_binary_stl, write_obj
+from meshprops.io.writers import write_binary_stl, write_obj
+from meshprops.measure.assembly import measure_assembly, measure_manifest
+from meshprops.measure.body import measure_mesh
+from meshprops.measure.manifest import load_manifest, parse_manifest
+from meshprops.output.csv_table import breakdown_csv
+from meshprops.output.serialize import assembly_document
 
 ROOT = Path(__file__).resolve().parent.parent
 ROVER = ROOT / "sample_meshes" / "rover.toml"
@@ -221,7 +223,7 @@ def test_placement_equals_measuring_the_moved_vertices(tmp_path):
     item = measure_manifest(path).items[0]
     vertices, faces = shapes.box((40.0, 20.0, 10.0), center=(3.0, 2.0, 1.0))
     moved = vertices @ item.placement.rotation.T + np.array([10.0, 20.0, 30.0])
-    direct = measure_mesh(mesh_from_arrays(moved, faces, length_unit="mm"), 2000.0).properties
+    direct = measure_mesh(mesh_from_arrays(moved, faces, length_unit="mm"), density=2000.0).properties
     assert np.allclose(item.properties.center_of_mass, direct.center_of_mass, rtol=0, atol=1e-15)
     assert relative(item.properties.inertia_about_com, direct.inertia_about_com) < 1e-10
 
@@ -537,7 +539,7 @@ def test_demo_manifest_validates_against_manifest_schema():
 
 
 def test_manifest_schema_lists_exactly_the_keys_the_parser_accepts():
-    from meshprops import assembly
+    from meshprops.measure import manifest as assembly
 
     schema = json.loads((ROOT / "meshprops" / "schema" / "manifest.schema.json").read_text())
     props = schema["properties"]

@@ -12,13 +12,24 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from meshes import (
+    catalogue,  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
+)
 from typer.testing import CliRunner
 
-from meshprops import checks, mesh_from_arrays, mesh_from_triangles, shapes, writers
-from meshprops.checks import ERROR, WARNING, check_mesh, validate
+from meshprops import mesh_from_arrays, mesh_from_triangles
 from meshprops.cli import app
-from meshes import catalogue  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
-from meshprops.moments import integrate_chunks
+from meshprops.geometry import shapes, welding
+from meshprops.geometry.faces import near_pairs
+from meshprops.geometry.inside import winding_numbers
+from meshprops.geometry.intersections import triangles_cross
+from meshprops.geometry.topology import connected_components, is_closed_and_oriented
+from meshprops.geometry.welding import weld_exact, weld_positions
+from meshprops.io import writers
+from meshprops.physics.moments import integrate_chunks
+from meshprops.validation import checks as validation_checks
+from meshprops.validation.checks import check_mesh, validate
+from meshprops.validation.findings import ERROR, WARNING
 
 HERE = Path(__file__).resolve().parent
 
@@ -124,7 +135,7 @@ def test_an_inch_part_read_as_millimetres_is_not_flagged_but_a_huge_inch_part_is
 
 
 def test_measure_skips_self_intersections_above_the_limit_and_says_so(monkeypatch):
-    monkeypatch.setattr(checks, "SELF_INTERSECTION_FACE_LIMIT", 11)
+    monkeypatch.setattr(validation_checks, "SELF_INTERSECTION_FACE_LIMIT", 11)
     mesh = mesh_from_arrays(*catalogue._bow_tie())
     fast = _report(mesh)
     assert "self_intersection" not in {f.code for f in fast.findings}
@@ -206,7 +217,7 @@ def _reference_weld(rows: np.ndarray) -> np.ndarray:
 )
 def test_welding_is_exact(rows, dtype):
     positions = np.array(rows, dtype=dtype)
-    ids, count = checks.weld_positions(positions)
+    ids, count = weld_positions(positions)
     expected = _reference_weld(positions)
     assert count == expected.max() + 1
     np.testing.assert_array_equal(ids, expected)
@@ -214,10 +225,10 @@ def test_welding_is_exact(rows, dtype):
 
 def test_welding_stays_exact_when_every_hash_collides(monkeypatch):
     """Force the worst case: every row gets the same hash; rows must still be told apart by their bits."""
-    monkeypatch.setattr(checks, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
+    monkeypatch.setattr(welding, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
     rng = np.random.default_rng(4)
     positions = rng.integers(0, 4, size=(300, 3)).astype(np.float64)
-    ids, count = checks.weld_positions(positions)
+    ids, count = weld_positions(positions)
     expected = _reference_weld(positions)
     # Same partition as the reference (rows split off by a collision are numbered last, so
     # compare the pairing of ids, not the numbers), and dense ids.
@@ -234,9 +245,9 @@ def test_welding_a_memory_mapped_stl_stays_exact_when_every_hash_collides(tmp_pa
     path = tmp_path / "torus.stl"
     writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
     mesh = load_mesh(path, "m")
-    honest = checks.weld_exact(mesh)
-    monkeypatch.setattr(checks, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
-    forced = checks.weld_exact(mesh)
+    honest = weld_exact(mesh)
+    monkeypatch.setattr(welding, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
+    forced = weld_exact(mesh)
     pairs = set(zip(forced.face_vertices.reshape(-1).tolist(), honest.face_vertices.reshape(-1).tolist()))
     assert len(pairs) == len(vertices)  # the same partition of corners into vertices
     np.testing.assert_array_equal(honest.face_vertices.reshape(-1), _reference_weld(np.asarray(mesh.soup).reshape(-1, 3)))
@@ -249,10 +260,10 @@ def test_welding_a_binary_stl_memory_map_matches_its_indexed_twin(tmp_path):
     vertices, faces = shapes.torus(2.0, 0.5, 40, 20)
     path = tmp_path / "torus.stl"
     writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
-    soup = checks.weld_exact(load_mesh(path, "m"))
-    indexed = checks.weld_exact(mesh_from_arrays(vertices.astype(np.float32).astype(np.float64), faces))
+    soup = weld_exact(load_mesh(path, "m"))
+    indexed = weld_exact(mesh_from_arrays(vertices.astype(np.float32).astype(np.float64), faces))
     assert soup.vertex_count == indexed.vertex_count == len(vertices)
-    assert checks.is_closed_and_oriented(soup) and checks.is_closed_and_oriented(indexed)
+    assert is_closed_and_oriented(soup) and is_closed_and_oriented(indexed)
 
 
 def _reference_components(count, edges):
@@ -282,7 +293,7 @@ def test_union_find_matches_breadth_first_search(graph):
     count, edges = graph
     a = np.array([e[0] for e in edges], dtype=np.int64)
     b = np.array([e[1] for e in edges], dtype=np.int64)
-    labels = checks.connected_components(count, [(a, b)])
+    labels = connected_components(count, [(a, b)])
     np.testing.assert_array_equal(labels, _reference_components(count, edges))
 
 
@@ -291,14 +302,14 @@ def test_union_find_matches_breadth_first_search(graph):
 )
 def test_the_edge_test_accepts_closed_meshes_and_rejects_any_missing_or_flipped_face(build):
     vertices, faces = build()
-    topology = checks.weld_exact(mesh_from_arrays(vertices, faces))
-    assert checks.is_closed_and_oriented(topology)
+    topology = weld_exact(mesh_from_arrays(vertices, faces))
+    assert is_closed_and_oriented(topology)
     for face in range(0, len(faces), max(1, len(faces) // 7)):
-        missing = checks.weld_exact(mesh_from_arrays(vertices, np.delete(faces, face, axis=0)))
-        assert not checks.is_closed_and_oriented(missing)
+        missing = weld_exact(mesh_from_arrays(vertices, np.delete(faces, face, axis=0)))
+        assert not is_closed_and_oriented(missing)
         flipped = faces.copy()
         flipped[face] = flipped[face][::-1]
-        assert not checks.is_closed_and_oriented(checks.weld_exact(mesh_from_arrays(vertices, flipped)))
+        assert not is_closed_and_oriented(weld_exact(mesh_from_arrays(vertices, flipped)))
 
 
 def _convex_inside(points, vertices, faces):
@@ -315,9 +326,9 @@ def test_winding_numbers_count_rays_through_edges_and_vertices_once():
     triangles = vertices[faces]
     inside = np.array([[0, 0, 0], [0.5, 0, 0], [0, 0.5, 0.5], [-0.9, 0.9, -0.9], [0, -0.5, 0.5], [0.99, 0, 0]])
     outside = np.array([[3, 0, 0], [-3, 0, 0], [-3, 1, 1], [-3, -1, 1], [-3, 1, 0], [0, 1.5, 0], [-3, 0.5, 0.5]])
-    np.testing.assert_array_equal(checks.winding_numbers(inside, triangles), 1)
-    np.testing.assert_array_equal(checks.winding_numbers(outside, triangles), 0)
-    np.testing.assert_array_equal(checks.winding_numbers(inside, triangles[:, ::-1]), -1)
+    np.testing.assert_array_equal(winding_numbers(inside, triangles), 1)
+    np.testing.assert_array_equal(winding_numbers(outside, triangles), 0)
+    np.testing.assert_array_equal(winding_numbers(inside, triangles[:, ::-1]), -1)
 
 
 @settings(max_examples=40, deadline=None)
@@ -331,7 +342,7 @@ def test_winding_numbers_match_a_half_space_test_on_a_convex_solid(points):
     distance = np.abs(points @ normals.T - np.einsum("ij,ij->i", normals, tri[:, 0])) / np.linalg.norm(normals, axis=1)
     points = points[distance.min(axis=1) > 1e-9]  # on the surface the answer is a matter of convention
     expected = _convex_inside(points, vertices, faces).astype(int)
-    np.testing.assert_array_equal(checks.winding_numbers(points, tri), expected)
+    np.testing.assert_array_equal(winding_numbers(points, tri), expected)
 
 
 def test_triangle_crossing_test():
@@ -344,10 +355,10 @@ def test_triangle_crossing_test():
     others = np.stack([piercing, touching_at_a_point, resting_on_an_edge, coplanar_overlap, far_away])
     first = np.repeat(base[None], len(others), axis=0)
     expected = [True, False, False, False, False]
-    assert checks.triangles_cross(first, others).tolist() == expected
-    assert checks.triangles_cross(others, first).tolist() == expected
+    assert triangles_cross(first, others).tolist() == expected
+    assert triangles_cross(others, first).tolist() == expected
     shift = np.array([2000.0, -1500.0, 300.0])  # far from the origin: same answers
-    assert checks.triangles_cross(first + shift, others + shift).tolist() == expected
+    assert triangles_cross(first + shift, others + shift).tolist() == expected
 
 
 def test_near_pairs_finds_exactly_the_close_points():
@@ -355,7 +366,7 @@ def test_near_pairs_finds_exactly_the_close_points():
     points = rng.uniform(0, 1, size=(400, 3))
     points[10] = points[3] + [4e-7, 0, 0]
     points[20] = points[5] + [0, 2e-6, 0]
-    first, second = checks.near_pairs(points, 1e-6)
+    first, second = near_pairs(points, 1e-6)
     distance = np.linalg.norm(points[:, None] - points[None], axis=2)
     expected = {(i, j) for i, j in zip(*np.nonzero(np.triu(distance <= 1e-6, 1)))}
     assert set(zip(first.tolist(), second.tolist())) == expected == {(3, 10)}

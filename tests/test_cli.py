@@ -14,8 +14,10 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from meshprops import measure_file, shapes, writers
+from meshprops import measure_file
 from meshprops.cli import app, main
+from meshprops.geometry import shapes
+from meshprops.io import writers
 
 runner = CliRunner()
 SCHEMA_PATH = Path(__file__).resolve().parents[1] / "meshprops" / "schema" / "measure.schema.json"
@@ -83,7 +85,7 @@ def test_json_document_has_the_contract_keys_and_the_library_numbers(bracket_stl
 
     # The same numbers as the library (JSON floats round-trip exactly).
     expected = measure_file(
-        bracket_stl, 2700.0, length_unit="mm", about=np.array([10.0, 0.0, -5.0]) * 0.001, angular_velocity=[0, 0, 100]
+        bracket_stl, density=2700.0, length_unit="mm", about=np.array([10.0, 0.0, -5.0]) * 0.001, angular_velocity=[0, 0, 100]
     )
     properties = expected.properties
     assert body["volume"] == properties.volume

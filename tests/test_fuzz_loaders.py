@@ -23,9 +23,11 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from typer.testing import CliRunner
 
-from meshprops import Mesh, MeshFileError, MeshpropsError, load_mesh, measure_mesh, shapes, writers
-from meshprops.checks import check_mesh
+from meshprops import Mesh, MeshFileError, MeshpropsError, load_mesh, measure_mesh
 from meshprops.cli import app
+from meshprops.geometry import shapes
+from meshprops.io import writers
+from meshprops.validation.checks import check_mesh
 
 
 def _seed_files() -> dict[str, bytes]:
@@ -152,10 +154,10 @@ def _load_and_measure(extension: str, data: bytes) -> None:
             return
         assert isinstance(mesh, Mesh) and mesh.face_count > 0
         try:
-            body = measure_mesh(mesh, 1000.0, on_invalid="report")
+            body = measure_mesh(mesh, density=1000.0, on_invalid="report")
             assert body.valid == (body.properties is not None)
             check_mesh(mesh)
-            measure_mesh(mesh, 1000.0, on_invalid="report", repair=True)
+            measure_mesh(mesh, density=1000.0, on_invalid="report", repair=True)
         except MeshpropsError as error:
             assert str(error) and "\n" not in str(error)
     finally:
@@ -181,7 +183,7 @@ def test_random_bytes_load_or_are_refused_with_one_line(case):
 def test_every_seed_is_a_sound_mesh(name, tmp_path):
     path = tmp_path / f"seed{EXTENSION[name]}"
     path.write_bytes(SEEDS[name])
-    body = measure_mesh(load_mesh(path, "mm"), 1000.0, on_invalid="report")
+    body = measure_mesh(load_mesh(path, "mm"), density=1000.0, on_invalid="report")
     assert body.valid and body.properties.volume == pytest.approx((24.0 + 1.0) * 1e-9, rel=1e-12)
 
 

@@ -8,7 +8,6 @@ The files in ``tests/golden/outputs`` were recorded before the package was restr
 from __future__ import annotations
 
 import pytest
-
 from golden.cases import GOLDEN, cases, run_case
 
 CASES = cases()

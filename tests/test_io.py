@@ -7,13 +7,14 @@ import struct
 import numpy as np
 import pytest
 
-from meshprops import MeshFileError, MeshpropsError, UnitError, load_mesh, measure_mesh, shapes, writers
-from meshprops.io import mesh_from_arrays, mesh_from_triangles
-from meshprops.moments import integrate_chunks
+from meshprops import MeshFileError, MeshpropsError, UnitError, load_mesh, measure_mesh
+from meshprops.geometry import shapes
+from meshprops.io import mesh_from_arrays, mesh_from_triangles, writers
+from meshprops.physics.moments import integrate_chunks
 
 
 def _properties(mesh, density=1000.0):
-    return measure_mesh(mesh, density).properties
+    return measure_mesh(mesh, density=density).properties
 
 
 # ---------------------------------------------------------------------------- every format, same numbers

@@ -4,11 +4,12 @@ line; through the CLI one line on stderr, exit code 2, nothing on stdout, no tra
 import pytest
 from typer.testing import CliRunner
 
-from meshprops import shapes
-from meshprops.assembly import load_manifest, measure_manifest
 from meshprops.cli import app
 from meshprops.errors import EXIT_USAGE, InputValueError, ManifestError, MeshpropsError
-from meshprops.writers import write_binary_stl
+from meshprops.geometry import shapes
+from meshprops.io.writers import write_binary_stl
+from meshprops.measure.assembly import measure_manifest
+from meshprops.measure.manifest import load_manifest
 
 GOOD_BODY = '[[body]]\nname = "cube"\nmesh = "cube.stl"\ndensity = 1000\n'
 

@@ -5,13 +5,20 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from meshprops import InputValueError, MeshpropsError, combine, measure_mesh, mesh_from_arrays, shapes
-from meshprops.mass import MassProperties, parallel_axis_term, rotate_tensor
-from meshprops.moments import integrate_triangles
+from meshprops import (
+    InputValueError,
+    MeshpropsError,
+    combine,
+    measure_mesh,
+    mesh_from_arrays,
+)
+from meshprops.geometry import shapes
+from meshprops.physics.mass import MassProperties, parallel_axis_term, rotate_tensor
+from meshprops.physics.moments import integrate_triangles
 
 
 def _measure(vertices, faces, density=1000.0):
-    return measure_mesh(mesh_from_arrays(vertices, faces), density).properties
+    return measure_mesh(mesh_from_arrays(vertices, faces), density=density).properties
 
 
 def _box_tensor(mass, a, b, c):

@@ -9,7 +9,13 @@ from typer.testing import CliRunner
 
 from meshprops.cli import app
 from meshprops.errors import InputValueError, MeshpropsError
-from meshprops.materials import MATERIALS, find_material, material_names, normalize_name, user_material
+from meshprops.materials import (
+    MATERIALS,
+    find_material,
+    material_names,
+    normalize_name,
+    user_material,
+)
 
 # Unit conversions (exact by definition, common practice): 1 lb = 0.45359237 kg, 1 in = 0.0254 m;
 # 1 g/cm^3 = 1 kg/dm^3 = 1000 kg/m^3; specific gravity is relative to water (~1000 kg/m^3);

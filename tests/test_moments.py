@@ -5,8 +5,13 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from meshprops import shapes
-from meshprops.moments import Moments, integrate_chunks, integrate_triangles, sum_moments
+from meshprops.geometry import shapes
+from meshprops.physics.moments import (
+    Moments,
+    integrate_chunks,
+    integrate_triangles,
+    sum_moments,
+)
 
 # The unit tetrahedron (0, e1, e2, e3), faces wound counter-clockwise seen from outside.
 UNIT_TETRAHEDRON = np.array(

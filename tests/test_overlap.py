@@ -10,17 +10,17 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from meshprops import shapes
-from meshprops.assembly import measure_manifest
-from meshprops.assembly_emit import assembly_document
-from meshprops.overlap import (
+from meshprops.geometry import shapes
+from meshprops.io.writers import write_binary_stl
+from meshprops.measure.assembly import measure_manifest
+from meshprops.measure.overlap import (
     bounding_box,
     candidate_pairs,
     estimate_overlap,
     intersection_box,
     points_inside,
 )
-from meshprops.writers import write_binary_stl
+from meshprops.output.serialize import assembly_document
 
 MM = 1e-3
 

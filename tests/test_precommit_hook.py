@@ -42,7 +42,8 @@ def test_hook_passes_sound_exports_and_fails_broken_ones():
 def test_check_accepts_a_manifest_and_checks_each_mesh_it_lists_once(tmp_path):
     import json
 
-    from meshprops import shapes, writers
+    from meshprops.geometry import shapes
+    from meshprops.io import writers
 
     writers.write_obj(tmp_path / "good.obj", *shapes.box((10.0, 20.0, 30.0)))
     vertices, faces = shapes.box((10.0, 20.0, 30.0))

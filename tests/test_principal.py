@@ -6,8 +6,9 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from meshprops import measure_mesh, mesh_from_arrays, shapes
-from meshprops.principal import principal_frame
+from meshprops import measure_mesh, mesh_from_arrays
+from meshprops.geometry import shapes
+from meshprops.physics.principal import principal_frame
 
 
 def _sign_rule(axis):
@@ -36,7 +37,7 @@ def test_recovers_known_axes_with_the_sign_rule(quaternion, rotation):
 
 
 def test_axes_form_a_proper_rotation_that_diagonalizes(part, close):
-    inertia = measure_mesh(mesh_from_arrays(*part), 1000.0).properties.inertia_about_com
+    inertia = measure_mesh(mesh_from_arrays(*part), density=1000.0).properties.inertia_about_com
     frame = principal_frame(inertia)
     assert np.all(np.diff(frame.moments) >= 0.0)
     close(frame.axes @ frame.axes.T, np.eye(3), 1e-14)
@@ -47,8 +48,8 @@ def test_axes_form_a_proper_rotation_that_diagonalizes(part, close):
 def test_same_body_same_axes_whatever_the_face_order(part):
     vertices, faces = part
     shuffled = np.random.default_rng(7).permutation(faces)
-    first = principal_frame(measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties.inertia_about_com)
-    second = principal_frame(measure_mesh(mesh_from_arrays(vertices, shuffled), 1.0).properties.inertia_about_com)
+    first = principal_frame(measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties.inertia_about_com)
+    second = principal_frame(measure_mesh(mesh_from_arrays(vertices, shuffled), density=1.0).properties.inertia_about_com)
     # Deterministic signs: the two frames agree, not just up to a flip.
     np.testing.assert_allclose(first.axes, second.axes, atol=1e-12)
 
@@ -66,7 +67,7 @@ def test_same_body_same_axes_whatever_the_face_order(part):
     ],
 )
 def test_symmetry_flags(vertices_faces, symmetry, unique):
-    frame = measure_mesh(mesh_from_arrays(*vertices_faces), 1000.0).principal
+    frame = measure_mesh(mesh_from_arrays(*vertices_faces), density=1000.0).principal
     assert frame.symmetry == symmetry
     assert frame.unique_axes == unique
     assert np.linalg.det(frame.axes) == pytest.approx(1.0, abs=1e-12)
@@ -78,7 +79,7 @@ def test_triangle_inequality():
     # Every physical body has I1 + I2 >= I3 (from I_z = ∫(x² + y²) ≤ ∫(x² + z²) + ∫(y² + z²)); a flat
     # plate reaches equality (perpendicular-axis theorem, handbook).
     assert principal_frame(np.diag([1.0, 2.0, 3.0])).satisfies_triangle_inequality
-    plate = measure_mesh(mesh_from_arrays(*shapes.box((1.0, 2.0, 1e-4))), 1000.0).principal
+    plate = measure_mesh(mesh_from_arrays(*shapes.box((1.0, 2.0, 1e-4))), density=1000.0).principal
     assert plate.satisfies_triangle_inequality
     assert plate.moments[0] + plate.moments[1] == pytest.approx(plate.moments[2], rel=1e-7)
     assert not principal_frame(np.diag([1.0, 1.0, 3.0])).satisfies_triangle_inequality

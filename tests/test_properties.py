@@ -17,9 +17,10 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from meshprops import InvalidMeshError, measure_mesh, mesh_from_arrays, shapes
-from meshprops.mass import parallel_axis_term
-from meshprops.moments import integrate_chunks
+from meshprops import InvalidMeshError, measure_mesh, mesh_from_arrays
+from meshprops.geometry import shapes
+from meshprops.physics.mass import parallel_axis_term
+from meshprops.physics.moments import integrate_chunks
 
 SETTINGS = settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 DENSITY = 1000.0
@@ -34,7 +35,7 @@ PARTS = {"bracket": BRACKET, "torus": TORUS}
 
 
 def _measure(vertices, faces):
-    return measure_mesh(mesh_from_arrays(vertices, faces), DENSITY).properties
+    return measure_mesh(mesh_from_arrays(vertices, faces), density=DENSITY).properties
 
 
 BASE = {name: _measure(*mesh) for name, mesh in PARTS.items()}
@@ -156,8 +157,8 @@ def test_a_reflection_is_inside_out_and_refused_until_the_faces_are_flipped(name
     mirror[axis, axis] = -1.0
     reflected = vertices @ mirror
     with pytest.raises(InvalidMeshError, match="inside_out"):
-        measure_mesh(mesh_from_arrays(reflected, faces), DENSITY)
-    report = measure_mesh(mesh_from_arrays(reflected, faces), DENSITY, on_invalid="report")
+        measure_mesh(mesh_from_arrays(reflected, faces), density=DENSITY)
+    report = measure_mesh(mesh_from_arrays(reflected, faces), density=DENSITY, on_invalid="report")
     assert report.properties is None  # no numbers at all, so certainly no negative mass
     flipped = _measure(reflected, faces[:, ::-1])
     base = BASE[name]

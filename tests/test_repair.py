@@ -12,13 +12,17 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from meshes import (
+    catalogue,  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
+)
 from typer.testing import CliRunner
 
-from meshprops import mesh_from_arrays, measure_mesh, shapes, writers
-from meshprops.checks import ERROR, WARNING
+from meshprops import measure_mesh, mesh_from_arrays
 from meshprops.cli import app
-from meshes import catalogue  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
-from meshprops.repair import repair_mesh
+from meshprops.geometry import shapes
+from meshprops.io import writers
+from meshprops.validation.findings import ERROR, WARNING
+from meshprops.validation.repair import repair_mesh
 
 HERE = Path(__file__).resolve().parent
 runner = CliRunner()
@@ -32,7 +36,7 @@ UNREPAIRABLE = [c for c in CASES if not c.solid]
 
 def _measure(vertices, faces, unit="mm", repair=True):
     mesh = mesh_from_arrays(vertices, faces, length_unit=unit, source="fixture")
-    return measure_mesh(mesh, DENSITY, on_invalid="report", repair=repair)
+    return measure_mesh(mesh, density=DENSITY, on_invalid="report", repair=repair)
 
 
 def _assert_closed_form(body, solid, metres_per_unit=1e-3):

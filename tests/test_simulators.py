@@ -20,12 +20,15 @@ import numpy as np
 import pytest
 from typer.testing import CliRunner
 
-from meshprops import shapes
-from meshprops.assembly import measure_manifest
-from meshprops.assembly_emit import assembly_document
 from meshprops.cli import app
 from meshprops.errors import SimulatorExportError
-from meshprops.rotations import (
+from meshprops.geometry import shapes
+from meshprops.io.writers import write_obj
+from meshprops.measure.assembly import measure_manifest
+from meshprops.output.serialize import assembly_document
+from meshprops.output.simulators import inertial_blocks
+from meshprops.physics.plausibility import check_plausibility, equivalent_box
+from meshprops.physics.rotations import (
     nearest_rotation,
     quaternion_from_rotation,
     rotation_from_axis_angle,
@@ -33,8 +36,6 @@ from meshprops.rotations import (
     rotation_from_rpy,
     rpy_from_rotation,
 )
-from meshprops.simulators import check_plausibility, equivalent_box, inertial_blocks
-from meshprops.writers import write_obj
 
 ROOT = Path(__file__).resolve().parent.parent
 ROVER = ROOT / "sample_meshes" / "rover.toml"

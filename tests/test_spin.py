@@ -7,9 +7,10 @@ import math
 import numpy as np
 import pytest
 
-from meshprops import measure_mesh, mesh_from_arrays, shapes
-from meshprops.mass import MassProperties
-from meshprops.spin import angle_between, spin
+from meshprops import measure_mesh, mesh_from_arrays
+from meshprops.geometry import shapes
+from meshprops.physics.mass import MassProperties
+from meshprops.physics.spin import angle_between, spin
 
 RADIUS, THICKNESS, SECTIONS, DENSITY = 0.05, 0.001, 256, 7850.0
 ALPHA = 2.0 * math.pi / SECTIONS
@@ -19,7 +20,7 @@ ALPHA = 2.0 * math.pi / SECTIONS
 def disk():
     """A thin steel disk: a regular 256-gon prism, 50 mm circumradius, 1 mm thick, centred at (0.3, −0.2, 0.1) m."""
     vertices, faces = shapes.cylinder(RADIUS, THICKNESS, SECTIONS, (0.3, -0.2, 0.1))
-    return measure_mesh(mesh_from_arrays(vertices, faces), DENSITY).properties
+    return measure_mesh(mesh_from_arrays(vertices, faces), density=DENSITY).properties
 
 
 def test_thin_disk_spinning_about_its_axis(disk):
@@ -68,7 +69,7 @@ def test_angle_between_momentum_and_spin_off_the_axis(disk, tilt_deg):
 
 def test_kinetic_energy_of_a_box_is_half_omega_i_omega():
     a, b, c = 0.2, 0.3, 0.5
-    box = measure_mesh(mesh_from_arrays(*shapes.box((a, b, c))), 1000.0).properties
+    box = measure_mesh(mesh_from_arrays(*shapes.box((a, b, c))), density=1000.0).properties
     mass = 1000.0 * a * b * c
     omega = np.array([3.0, -4.0, 5.0])
     state = spin(box, omega)
@@ -118,7 +119,7 @@ def test_moving_body_spin_plus_orbital_matches_summing_every_particle(seed):
 
 
 def test_no_spin_has_no_angle():
-    box = measure_mesh(mesh_from_arrays(*shapes.box()), 1000.0).properties
+    box = measure_mesh(mesh_from_arrays(*shapes.box()), density=1000.0).properties
     state = spin(box, [0.0, 0.0, 0.0])
     assert state.angle_between_momentum_and_angular_velocity is None
     assert state.rotational_kinetic_energy == 0.0

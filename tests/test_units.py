@@ -7,8 +7,21 @@ import math
 import numpy as np
 import pytest
 
-from meshprops import MeshpropsError, UnitError, load_mesh, measure_mesh, mesh_from_arrays, shapes
-from meshprops.units import DEFAULT_LENGTH_UNIT, LENGTH_UNITS, SI_UNITS, metres_per, rpm_to_rad_per_s
+from meshprops import (
+    MeshpropsError,
+    UnitError,
+    load_mesh,
+    measure_mesh,
+    mesh_from_arrays,
+)
+from meshprops.geometry import shapes
+from meshprops.units import (
+    DEFAULT_LENGTH_UNIT,
+    LENGTH_UNITS,
+    SI_UNITS,
+    metres_per,
+    rpm_to_rad_per_s,
+)
 
 
 def test_factors_are_the_exact_definitions():
@@ -48,8 +61,8 @@ def test_rpm_to_rad_per_s():
 def test_mass_properties_scale_with_the_declared_unit(tmp_path, write_mesh, part, unit, close):
     vertices, faces = part
     path = write_mesh(tmp_path, "bracket", vertices, faces, "obj")
-    in_metres = measure_mesh(load_mesh(path, "m"), 1000.0).properties
-    declared = measure_mesh(load_mesh(path, unit), 1000.0).properties
+    in_metres = measure_mesh(load_mesh(path, "m"), density=1000.0).properties
+    declared = measure_mesh(load_mesh(path, unit), density=1000.0).properties
     s = metres_per(unit)
     # Lengths scale by s: volume and mass by s³, centre of mass by s, inertia by s⁵.
     assert declared.volume == pytest.approx(in_metres.volume * s**3, rel=1e-13)
@@ -70,7 +83,7 @@ def test_si_unit_table_names_every_output_quantity():
 def test_a_one_inch_cube_of_water():
     # 1 in³ = 16.387064 cm³ exactly (from 25.4 mm); at 1000 kg/m³ that is 16.387064 g.
     vertices, faces = shapes.box((1.0, 1.0, 1.0))
-    properties = measure_mesh(mesh_from_arrays(vertices, faces, length_unit="in"), 1000.0).properties
+    properties = measure_mesh(mesh_from_arrays(vertices, faces, length_unit="in"), density=1000.0).properties
     assert properties.mass == pytest.approx(0.016387064, rel=1e-13)
     # Cube about its centre: I = m a²/6 (handbook, from memory), a = 0.0254 m.
     np.testing.assert_allclose(np.diag(properties.inertia_about_com), 0.016387064 * 0.0254**2 / 6.0, rtol=1e-12)

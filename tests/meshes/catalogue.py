@@ -18,7 +18,8 @@ from pathlib import Path
 
 import numpy as np
 
-from meshprops import shapes, writers
+from meshprops.geometry import shapes
+from meshprops.io import writers
 
 
 @dataclass(frozen=True)

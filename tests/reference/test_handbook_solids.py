@@ -25,14 +25,15 @@ import math
 import numpy as np
 import pytest
 
-from meshprops import measure_mesh, mesh_from_arrays, shapes
+from meshprops import measure_mesh, mesh_from_arrays
+from meshprops.geometry import shapes
 
 DENSITY = 2700.0
 GAUSS_NODES, GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(3)
 
 
 def _measure(vertices, faces):
-    body = measure_mesh(mesh_from_arrays(vertices, faces), DENSITY)
+    body = measure_mesh(mesh_from_arrays(vertices, faces), density=DENSITY)
     assert body.valid
     return body.properties
 

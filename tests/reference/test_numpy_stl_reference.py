@@ -13,7 +13,9 @@ import numpy as np
 import pytest
 from stl import mesh as stl_mesh
 
-from meshprops import load_mesh, measure_mesh, shapes, writers
+from meshprops import load_mesh, measure_mesh
+from meshprops.geometry import shapes
+from meshprops.io import writers
 
 TURN = np.array([[0.8, 0.6, 0.0], [-0.6, 0.8, 0.0], [0.0, 0.0, 1.0]])  # exact 3-4-5 rotation about z
 
@@ -40,7 +42,7 @@ def test_binary_stl_agrees_with_numpy_stl(tmp_path, name):
     writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
 
     volume, center, inertia = stl_mesh.Mesh.from_file(str(path)).get_mass_properties()
-    ours = measure_mesh(load_mesh(path, "m"), 1.0).properties  # unit density, like numpy-stl
+    ours = measure_mesh(load_mesh(path, "m"), density=1.0).properties  # unit density, like numpy-stl
 
     assert ours.volume == pytest.approx(float(volume), rel=1e-9)
     size = np.ptp(vertices, axis=0).max()
@@ -53,7 +55,7 @@ def test_the_reference_sees_the_products_of_inertia_with_our_sign(tmp_path):
     path = tmp_path / "bracket.stl"
     writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
     _, _, inertia = stl_mesh.Mesh.from_file(str(path)).get_mass_properties()
-    ours = measure_mesh(load_mesh(path, "m"), 1.0).properties
+    ours = measure_mesh(load_mesh(path, "m"), density=1.0).properties
     # An L with legs along +x and +y has its mass concentrated where x and y have opposite
     # signs about the centre of mass, so P_xy = ∫xy dm < 0 and the tensor entry I_xy = -P_xy > 0.
     assert ours.products_of_inertia[0] < 0 < inertia[0, 1]

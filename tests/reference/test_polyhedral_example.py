@@ -99,7 +99,7 @@ TONON_VERTICES = [
 
 def test_tonon_example_against_the_exact_derivation():
     vertices, faces = tetrahedron_mesh(TONON_VERTICES)
-    measured = measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties
+    measured = measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties
     volume, centroid, tensor = exact_tetrahedron(TONON_VERTICES)
     assert measured.volume == pytest.approx(float(volume), rel=1e-13)
     np.testing.assert_allclose(measured.center_of_mass, [float(c) for c in centroid], rtol=1e-13)
@@ -112,7 +112,7 @@ def test_tonon_published_numbers_from_memory():
     # a = ∫(y² + z²), b = ∫(x² + z²), c = ∫(x² + y²), and products a' = ∫yz, b' = ∫xz, c' = ∫xy;
     # the tensor is [[a, −c', −b'], [−c', b, −a'], [−b', −a', c]] in our (x, y, z) order.
     vertices, faces = tetrahedron_mesh(TONON_VERTICES)
-    measured = measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties
+    measured = measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties
     # A tetrahedron's centroid is the mean of its corners (elementary).
     np.testing.assert_allclose(measured.center_of_mass, np.mean(TONON_VERTICES, axis=0), rtol=1e-14)
     a, b, c = 43520.33257, 194711.28938, 191168.76173
@@ -126,7 +126,7 @@ def test_random_tetrahedra_against_the_exact_derivation(seed):
     rng = np.random.default_rng(seed)
     points = rng.uniform(-1.0, 1.0, size=(4, 3)) * [0.5, 1.0, 2.0] + rng.uniform(-3.0, 3.0, size=3)
     vertices, faces = tetrahedron_mesh(points)
-    measured = measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties
+    measured = measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties
     volume, centroid, tensor = exact_tetrahedron([tuple(map(float, point)) for point in points])
     assert measured.volume == pytest.approx(float(volume), rel=1e-12)
     np.testing.assert_allclose(measured.center_of_mass, [float(x) for x in centroid], rtol=0, atol=1e-12)
@@ -143,7 +143,7 @@ def test_a_polyhedron_is_the_sum_of_its_tetrahedra():
          [3, 0, 4], [3, 4, 7]]
     )  # fmt: skip
     vertices = np.array(corners, dtype=np.float64)
-    measured = measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties
+    measured = measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties
     volume, first, second = Fraction(0), [Fraction(0)] * 3, [[Fraction(0)] * 3 for _ in range(3)]
     apex = (-1, 0.5, 0.5)  # any point: the signed tetrahedra of a closed surface add up to the solid
     for face in faces:

@@ -11,9 +11,11 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from meshprops import load_mesh, measure_mesh, mesh_from_triangles, shapes, writers
-from meshprops.mass import MassProperties
-from meshprops.moments import integrate_triangles
+from meshprops import load_mesh, measure_mesh, mesh_from_triangles
+from meshprops.geometry import shapes
+from meshprops.io import writers
+from meshprops.physics.mass import MassProperties
+from meshprops.physics.moments import integrate_triangles
 
 DENSITY = 2700.0
 SIZE = (0.1, 0.06, 0.04)  # m
@@ -41,7 +43,7 @@ def test_box_2_km_away_in_obj_keeps_its_inertia_to_1e_9(tmp_path, unit, factor):
     vertices, faces, rotation = _tilted_far_box()
     path = tmp_path / "far_box.obj"
     writers.write_obj(path, vertices * factor, faces)  # full-precision (repr) coordinates
-    properties = measure_mesh(load_mesh(path, unit), DENSITY).properties
+    properties = measure_mesh(load_mesh(path, unit), density=DENSITY).properties
     mass, principal = _box_handbook(SIZE)
     expected = rotation @ principal @ rotation.T  # the handbook tensor in the tilted axes
     assert properties.mass == pytest.approx(mass, rel=1e-9)
@@ -67,7 +69,7 @@ def test_far_binary_stl_in_millimetres_keeps_float32_digits():
     vertices, faces = shapes.box(size, (2_000_000.0, 1_000_000.0, 500_000.0))
     triangles = vertices[faces].astype(np.float32)
     assert np.array_equal(triangles.astype(np.float64), vertices[faces])
-    properties = measure_mesh(mesh_from_triangles(triangles, length_unit="mm"), DENSITY).properties
+    properties = measure_mesh(mesh_from_triangles(triangles, length_unit="mm"), density=DENSITY).properties
     mass, principal = _box_handbook(tuple(s / 1000.0 for s in size))
     # Converting 2e6 mm to metres rounds each coordinate by ~2e-13 m (0.001 is not a binary
     # fraction): ~1e-11 of this part's size, so ~1e-12 of its mass.
@@ -84,7 +86,7 @@ def test_a_millimetre_part_far_away_in_mm_keeps_its_inertia_to_round_off(tmp_pat
     vertices, faces = shapes.box((1.0, 2.0, 3.0))
     path = tmp_path / "far_block.obj"
     writers.write_obj(path, vertices + np.array([offset_mm, -offset_mm / 3.0, offset_mm / 7.0]), faces)
-    body = measure_mesh(load_mesh(path, "mm"), 1000.0)
+    body = measure_mesh(load_mesh(path, "mm"), density=1000.0)
     mass = 1000.0 * 6e-9
     expected = mass * np.array([4.0 + 9.0, 1.0 + 9.0, 1.0 + 4.0]) * 1e-6 / 12.0
     relative = np.abs(np.diag(body.properties.inertia_about_com) - expected).max() / expected.max()

@@ -11,10 +11,10 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
-
 import trimesh  # a declared dependency: a missing install must fail here, not skip
 
-from meshprops import load_mesh, measure_mesh, mesh_from_arrays, shapes
+from meshprops import load_mesh, measure_mesh, mesh_from_arrays
+from meshprops.geometry import shapes
 
 DENSITY = 1250.0
 RTOL = 1e-9
@@ -56,7 +56,7 @@ def test_mass_properties_agree_with_trimesh(name):
     reference = trimesh.Trimesh(vertices=vertices, faces=faces, process=False)
     reference.density = DENSITY
     expected = reference.mass_properties
-    ours = measure_mesh(mesh_from_arrays(vertices, faces), DENSITY).properties
+    ours = measure_mesh(mesh_from_arrays(vertices, faces), density=DENSITY).properties
     assert ours.volume == pytest.approx(float(expected["volume"]), rel=RTOL)
     assert ours.mass == pytest.approx(float(expected["mass"]), rel=RTOL)
     size = float(np.abs(vertices).max())
@@ -73,7 +73,7 @@ def test_trimesh_sign_convention_on_an_asymmetric_shape():
     reference = trimesh.Trimesh(vertices=vertices, faces=faces, process=False)
     reference.density = 1.0
     assert reference.moment_inertia[0, 1] == pytest.approx(-2.0, rel=1e-12)
-    ours = measure_mesh(mesh_from_arrays(vertices, faces), 1.0).properties
+    ours = measure_mesh(mesh_from_arrays(vertices, faces), density=1.0).properties
     assert ours.inertia_about_com[0, 1] == pytest.approx(-2.0, rel=1e-12)
     assert ours.products_of_inertia[0] == pytest.approx(2.0, rel=1e-12)
 
@@ -83,7 +83,7 @@ def test_agrees_with_trimesh_on_a_file_read_by_both(tmp_path, write_mesh, part):
     path = write_mesh(tmp_path, "bracket", *part, "obj")
     reference = trimesh.load(path, process=False, force="mesh")
     reference.density = DENSITY
-    ours = measure_mesh(load_mesh(path, "m"), DENSITY).properties
+    ours = measure_mesh(load_mesh(path, "m"), density=DENSITY).properties
     assert ours.mass == pytest.approx(reference.mass, rel=RTOL)
     np.testing.assert_allclose(ours.center_of_mass, reference.center_mass, rtol=RTOL)
     np.testing.assert_allclose(

@@ -14,17 +14,15 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from .checks import ERROR, Finding, ValidationReport, validate
-from .errors import InputValueError, InvalidMeshError
-from .io import Mesh, load_mesh
-from .mass import MassProperties, check_density
-from .moments import integrate_mesh
-from .principal import PrincipalFrame, principal_frame
-from .spin import SpinState, spin
-
-#: Density used when none is given (water, 1000 kg/m³; the default of common simulators
-#: such as MuJoCo, common practice). Always flagged as assumed in the output.
-DEFAULT_DENSITY = 1000.0
+from ..errors import InputValueError, InvalidMeshError
+from ..io import Mesh, load_mesh
+from ..physics.mass import MassProperties, check_density
+from ..physics.moments import integrate_mesh
+from ..physics.principal import PrincipalFrame, principal_frame
+from ..physics.spin import SpinState, spin
+from ..validation.checks import validate
+from ..validation.findings import ERROR, Finding, ValidationReport
+from .options import DEFAULT_DENSITY, MeasureOptions
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -71,33 +69,13 @@ class BodyMeasurement:
         return self.validation.findings if self.validation is not None else ()
 
 
-def parse_vector(text: str | None, name: str, *, source: str | None = None) -> np.ndarray | None:
-    """Parse ``"X,Y,Z"`` into a finite (3,) float64 array; ``None`` passes through."""
-    if text is None:
-        return None
-    if isinstance(text, (list, tuple, np.ndarray)):
-        parts = list(text)
-    else:
-        parts = [p.strip() for p in str(text).split(",")]
-    try:
-        vector = np.array([float(p) for p in parts], dtype=np.float64)
-    except (TypeError, ValueError):
-        raise InputValueError(name, "three comma-separated numbers X,Y,Z", text, source=source) from None
-    if vector.shape != (3,) or not np.all(np.isfinite(vector)):
-        raise InputValueError(name, "three finite comma-separated numbers X,Y,Z", text, source=source)
-    return vector
-
-
 def measure_mesh(
     mesh: Mesh,
-    density: float | None = None,
+    options: MeasureOptions | None = None,
     *,
-    about=None,
-    angular_velocity=None,
-    com_velocity=None,
     name: str | None = None,
     on_invalid: str = "raise",
-    repair: bool = False,
+    **settings,
 ) -> BodyMeasurement:
     """Validate ``mesh`` and compute its mass properties.
 
@@ -105,30 +83,34 @@ def measure_mesh(
     ----------
     mesh
         A loaded mesh (its length unit is applied here, once).
-    density
-        kg/m³; ``None`` uses :data:`DEFAULT_DENSITY` and flags it as assumed.
-    about : (3,) m, optional
-        Point for ``inertia_about_point`` (and the total angular momentum when
-        ``angular_velocity`` is given), in the input frame, in metres.
-    angular_velocity : (3,) rad/s, optional
-    com_velocity : (3,) m/s, optional; velocity of the centre of mass
+    options
+        How to measure (:class:`~meshprops.measure.options.MeasureOptions`: density in kg/m³,
+        ``about`` point in metres, angular velocity in rad/s, centre-of-mass velocity in m/s,
+        repair). ``options.length_unit`` is not used: the mesh carries its own.
+    name
+        Optional body name (assemblies).
     on_invalid
         ``"raise"`` (default): raise :class:`InvalidMeshError` when validation
         finds an error. ``"report"``: return a measurement with ``valid`` false
         and no numbers, the findings saying why.
-    repair
-        Apply the safe repairs of :func:`meshprops.repair.repair_mesh` first
-        (reorient winding, flip inside-out shells and voids, drop degenerate and
-        duplicate faces), each reported as a ``repaired_*`` warning finding; the
-        repaired mesh is then validated and measured. Holes are never filled.
+    **settings
+        Fields of :class:`MeasureOptions` replacing those of ``options``
+        (``measure_mesh(mesh, density=2700.0)``).
+
+    With ``repair`` the safe repairs of :func:`meshprops.validation.repair.repair_mesh` are
+    applied first (reorient winding, flip inside-out shells and voids, drop degenerate and
+    duplicate faces), each reported as a ``repaired_*`` warning finding; the repaired mesh is
+    then validated and measured. Holes are never filled.
     """
+    options = MeasureOptions.build(options, **settings)
+    density = options.density
     if on_invalid not in ("raise", "report"):
         raise InputValueError("on_invalid", "'raise' or 'report'", on_invalid)
     density_assumed = density is None
     density = DEFAULT_DENSITY if density is None else check_density(density, source=mesh.source)
     repaired = None
-    if repair:
-        from .repair import repair_mesh
+    if options.repair:
+        from ..validation.repair import repair_mesh
 
         repaired = repair_mesh(mesh)
     measured = repaired.mesh if repaired is not None else mesh
@@ -163,16 +145,14 @@ def measure_mesh(
         report = replace(report, findings=report.findings + (impossible,))
         return _invalid(replace(base, validation=report), on_invalid)
 
-    point = parse_vector(about, "about point") if about is not None else None
-    omega = parse_vector(angular_velocity, "angular velocity") if angular_velocity is not None else None
-    velocity = parse_vector(com_velocity, "velocity") if com_velocity is not None else None
+    point, omega = options.about, options.angular_velocity
     return replace(
         base,
         properties=properties,
         principal=frame,
         point=point,
         inertia_about_point=properties.inertia_about(point) if point is not None else None,
-        spin=spin(properties, omega, com_velocity=velocity, point=point) if omega is not None else None,
+        spin=spin(properties, omega, com_velocity=options.com_velocity, point=point) if omega is not None else None,
     )
 
 
@@ -185,60 +165,15 @@ def _invalid(measurement: BodyMeasurement, on_invalid: str) -> BodyMeasurement:
 
 def measure_file(
     path: str | os.PathLike,
-    density: float | None = None,
+    options: MeasureOptions | None = None,
     *,
-    length_unit: str = "mm",
-    about=None,
-    angular_velocity=None,
-    com_velocity=None,
     name: str | None = None,
     on_invalid: str = "raise",
-    repair: bool = False,
+    **settings,
 ) -> BodyMeasurement:
-    """Load a mesh file and measure it; see :func:`measure_mesh`.
+    """Load a mesh file in ``options.length_unit`` and measure it; see :func:`measure_mesh`.
 
     ``about`` is given in metres here (the CLI converts from the mesh unit).
     """
-    mesh = load_mesh(path, length_unit)
-    return measure_mesh(
-        mesh,
-        density,
-        about=about,
-        angular_velocity=angular_velocity,
-        com_velocity=com_velocity,
-        name=name,
-        on_invalid=on_invalid,
-        repair=repair,
-    )
-
-
-def measure_files(
-    paths,
-    density: float | None = None,
-    *,
-    length_unit: str = "mm",
-    about=None,
-    angular_velocity=None,
-    com_velocity=None,
-    on_invalid: str = "report",
-    repair: bool = False,
-) -> list[BodyMeasurement]:
-    """Measure several mesh files with the same settings (one body each).
-
-    Every file is loaded before any result is returned, so an unreadable file
-    fails the whole call (:class:`meshprops.errors.MeshFileError`) and nothing
-    is half-reported. ``about`` is in metres.
-    """
-    meshes = [load_mesh(path, length_unit) for path in paths]
-    return [
-        measure_mesh(
-            mesh,
-            density,
-            about=about,
-            angular_velocity=angular_velocity,
-            com_velocity=com_velocity,
-            on_invalid=on_invalid,
-            repair=repair,
-        )
-        for mesh in meshes
-    ]
+    options = MeasureOptions.build(options, **settings)
+    return measure_mesh(load_mesh(path, options.length_unit), options, name=name, on_invalid=on_invalid)

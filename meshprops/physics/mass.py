@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputValueError
+from ..errors import InputValueError
 from .moments import Moments
 
 

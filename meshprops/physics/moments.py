@@ -22,7 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .errors import InputValueError
+from ..errors import InputValueError
 
 
 @dataclass(frozen=True, slots=True, eq=False)

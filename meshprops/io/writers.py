@@ -11,7 +11,7 @@ import os
 
 import numpy as np
 
-from .io import STL_RECORD
+from .mesh import STL_RECORD
 
 
 def _triangles(vertices, faces) -> np.ndarray:

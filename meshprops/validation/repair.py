@@ -34,23 +34,18 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from .checks import (
-    WARNING,
-    Finding,
-    Topology,
-    analyse_shells,
+from ..geometry.faces import mesh_extent
+from ..geometry.topology import (
+    collapsed_mask,
     duplicate_face_groups,
     edge_uses,
-    mesh_rows,
     orientation,
     patch_shells,
-    weld_positions,
-    where,
-    zero_area_faces,
-    _bounding_extent,
-    _collapsed_mask,
 )
-from .io import Mesh
+from ..geometry.welding import Topology, mesh_rows, weld_positions
+from ..io import Mesh
+from .checks import analyse_shells, zero_area_faces
+from .findings import WARNING, Finding, where
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -162,9 +157,9 @@ def repair_mesh(mesh: Mesh) -> RepairResult:
 
 def _degenerate_to_drop(mesh: Mesh, faces: np.ndarray, vertex_count: int) -> np.ndarray:
     """Indices of degenerate faces that can be dropped without opening an edge."""
-    collapsed = np.flatnonzero(_collapsed_mask(faces))
+    collapsed = np.flatnonzero(collapsed_mask(faces))
     topology = Topology(faces, vertex_count, vertex_count)
-    diagonal = float(np.linalg.norm(_bounding_extent(mesh))) / mesh.metres_per_unit
+    diagonal = float(np.linalg.norm(mesh_extent(mesh))) / mesh.metres_per_unit
     slivers = zero_area_faces(mesh, topology, diagonal)
     if slivers.size == 0:
         return collapsed
@@ -178,7 +173,7 @@ def _degenerate_to_drop(mesh: Mesh, faces: np.ndarray, vertex_count: int) -> np.
 
 def _unpaired_edges(faces: np.ndarray) -> int:
     """How many directed edges (of non-collapsed faces) lack exactly one reverse partner."""
-    faces = faces[~_collapsed_mask(faces)]
+    faces = faces[~collapsed_mask(faces)]
     if faces.size == 0:
         return 0
     tails = faces.reshape(-1)

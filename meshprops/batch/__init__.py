@@ -1,0 +1,1 @@
+"""Many files: the one loop that ``check``, ``measure`` and the gate share."""

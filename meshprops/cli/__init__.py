@@ -1,0 +1,9 @@
+"""The ``meshprops`` command line: one module per command, registered on one typer app.
+
+Adding a command is one new module here and one name in the import below.
+"""
+
+from . import check, materials, measure  # noqa: F401  (importing a command registers it)
+from .app import app, main
+
+__all__ = ["app", "main"]

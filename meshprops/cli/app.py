@@ -1,0 +1,88 @@
+"""The ``meshprops`` typer app and its console entry point: every error becomes one stderr line
+and an exit code, here and only here.
+
+Exit codes: 0 ok; 1 a mesh failed validation (or a check failed); 2 bad usage or
+unreadable input. Errors are one line on stderr, never a traceback.
+"""
+
+from __future__ import annotations
+
+import functools
+import sys
+
+import typer
+
+from ..errors import EXIT_OK, EXIT_USAGE, MeshpropsError
+
+app = typer.Typer(
+    name="meshprops",
+    help="Exact mass properties (mass, centre of mass, inertia, principal axes, spin) from closed triangle meshes.",
+    add_completion=False,
+    no_args_is_help=True,
+    pretty_exceptions_enable=False,
+    rich_markup_mode=None,
+)
+
+
+@app.callback()
+def _root() -> None:
+    """Exact mass properties from closed triangle meshes. SI output; see README for conventions."""
+
+
+def say(message: str) -> None:
+    print(f"meshprops: {message}", file=sys.stderr)
+
+
+def write_report(text: str, output) -> None:
+    """The report to ``output`` (atomically: never half-written), or to stdout."""
+    from ..io.atomic import write_atomically
+
+    if output is not None:
+        write_atomically(str(output), text)
+    else:
+        sys.stdout.write(text)
+
+
+def one_line_errors(function):
+    """Decorate every command with this: a MeshpropsError becomes one stderr line and its exit code.
+
+    Done per command (not only in :func:`main`) so that typer's CliRunner sees the same behaviour.
+    """
+
+    @functools.wraps(function)
+    def wrapper(*args, **kwargs):
+        try:
+            return function(*args, **kwargs)
+        except MeshpropsError as error:
+            say(f"error: {error}")
+            raise typer.Exit(error.exit_code) from None
+
+    return wrapper
+
+
+def main(argv: list[str] | None = None) -> None:
+    """Console entry point: run the app and turn every error into one line and an exit code."""
+    command = typer.main.get_command(app)
+    try:
+        # Without standalone mode the parser returns the command's exit code instead of exiting.
+        status = command.main(args=argv if argv is not None else sys.argv[1:], prog_name="meshprops", standalone_mode=False)
+    except MeshpropsError as error:
+        say(f"error: {error}")
+        sys.exit(error.exit_code)
+    except typer.Exit as done:
+        sys.exit(done.exit_code)
+    except typer.Abort:
+        say("aborted")
+        sys.exit(EXIT_USAGE)
+    except typer.TyperException as error:  # usage errors of the command-line parser
+        if type(error).__name__ == "NoArgsIsHelpError":
+            print(error.format_message())
+        else:
+            say(f"error: {error.format_message()}")
+        sys.exit(EXIT_USAGE)
+    except MemoryError:
+        say("error: out of memory")
+        sys.exit(EXIT_USAGE)
+    except BrokenPipeError:
+        sys.exit(EXIT_OK)
+    sys.exit(status if isinstance(status, int) else EXIT_OK)

@@ -1,0 +1,99 @@
+"""``meshprops measure``: mesh files or one assembly manifest -> mass properties.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
+from ..measure.options import MeasureOptions
+from ..units import DEFAULT_LENGTH_UNIT, metres_per
+from .app import app, one_line_errors, say, write_report
+from .options import angular_velocity, manifest_point, parse_vector
+
+
+@app.command()
+@one_line_errors
+def measure(
+    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY), one body each; or one assembly manifest (.toml).", show_default=False)],
+    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default mm; a manifest sets its own).")] = None,
+    density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3, applied to every file (default 1000, flagged as assumed).")] = None,
+    about: Annotated[Optional[str], typer.Option("--about", help="Also report the inertia about point X,Y,Z (in --units; with a manifest in its length_unit, or a named point).")] = None,
+    spin: Annotated[Optional[str], typer.Option("--spin", help="Angular velocity WX,WY,WZ in rad/s, in the mesh axes.")] = None,
+    rpm: Annotated[Optional[float], typer.Option("--rpm", help="Spin speed in rev/min about --axis (instead of --spin).")] = None,
+    axis: Annotated[Optional[str], typer.Option("--axis", help="Spin axis AX,AY,AZ for --rpm (normalized).")] = None,
+    velocity: Annotated[Optional[str], typer.Option("--velocity", help="Velocity VX,VY,VZ of the centre of mass in m/s (with --spin and --about: orbital angular momentum).")] = None,
+    json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document (SI) instead of a table.")] = False,
+    output_format: Annotated[Optional[str], typer.Option("--format", "-f", help="Output: table, json, urdf, sdf, mjcf (inertial blocks) or csv (assembly breakdown).")] = None,
+    inertial_form: Annotated[str, typer.Option("--inertial-form", help="Simulator blocks: full (six tensor entries) or principal (principal moments plus orientation).")] = "full",
+    overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,
+    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
+    repair: Annotated[bool, typer.Option("--repair", help="Apply safe repairs first (reorient winding, flip inside-out shells and voids, drop degenerate and duplicate faces), each reported as a repaired_* warning. Holes are never filled.")] = False,
+) -> None:
+    """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
+    from ..batch.runner import measure_files
+    from ..output.renderers import choose_format, format_document
+    from ..output.serialize import body_to_dict, document
+
+    chosen = choose_format(json_output, output_format)
+    omega = angular_velocity(spin, rpm, axis)
+    com_velocity = parse_vector(velocity, "--velocity")
+    if com_velocity is not None and omega is None:
+        raise InputValueError("--velocity", "to be used with --spin or --rpm", velocity)
+    if any(path.suffix.lower() == ".toml" for path in files):
+        if repair:
+            raise InputValueError("--repair", "mesh files (repair is not applied to an assembly manifest)", "a manifest")
+        options = MeasureOptions(angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples)
+        _measure_manifest(files, units, density, about, options, chosen, inertial_form, output)
+    units = units or DEFAULT_LENGTH_UNIT
+    point = parse_vector(about, "--about")
+    options = MeasureOptions(
+        length_unit=units,
+        density=density,
+        about=point * metres_per(units) if point is not None else None,
+        angular_velocity=omega,
+        com_velocity=com_velocity,
+        repair=repair,
+    )
+    bodies = measure_files([str(path) for path in files], options)
+    doc = document([body_to_dict(body) for body in bodies], input_length_unit=units)
+    text, notes = format_document(doc, chosen, inertial_form=inertial_form)
+    write_report(text, output)
+    for note in notes:
+        say(f"warning: {note}")
+    if any(body.density_assumed for body in bodies):
+        say("no --density given: assumed 1000 kg/m^3 (water); masses and inertias scale with density")
+    invalid = [body for body in bodies if not body.valid]
+    for body in invalid:
+        first = body.validation.errors[0]
+        say(f"{body.source}: invalid mesh: {first.code}: {first.message}")
+    raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
+
+
+def _measure_manifest(files, units, density, about, options, chosen, inertial_form, output) -> None:
+    """``measure MANIFEST.toml``: totals of an assembly; exits (1 when a body's mesh is invalid)."""
+    from ..measure.assembly import measure_assembly, resolve_point
+    from ..measure.manifest import load_manifest
+    from ..output.renderers import format_document
+    from ..output.serialize import assembly_document
+
+    if len(files) != 1:
+        raise InputValueError("FILES", "one assembly manifest alone (its bodies are listed inside it)", [str(f) for f in files])
+    if units is not None:
+        raise InputValueError("--units", "no --units with a manifest (set length_unit in it)", units)
+    if density is not None:
+        raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
+    manifest = load_manifest(files[0])
+    result = measure_assembly(manifest, options, about=resolve_point(manifest, manifest_point(manifest, about)))
+    text, notes = format_document(assembly_document(result), chosen, inertial_form=inertial_form)
+    write_report(text, output)
+    for note in tuple(result.warnings) + tuple(notes):
+        say(f"warning: {note}")
+    for item in result.items:
+        if not item.valid:
+            first = item.measurement.validation.errors[0]
+            say(f"{item.measurement.source}: invalid mesh: {first.code}: {first.message}")
+    raise typer.Exit(EXIT_OK if result.valid else EXIT_INVALID)

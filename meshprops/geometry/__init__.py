@@ -1,0 +1,1 @@
+"""Simple closed solids, welding, edge topology and shells, point-in-solid and triangle crossings."""

@@ -1,0 +1,29 @@
+"""Atomic file writing: a temporary file in the target's folder, then a rename, so that a
+report is never left half-written.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+
+from ..errors import OutputFileError
+
+
+def write_atomically(path: str, text: str) -> None:
+    """Write ``text`` to ``path`` via a temporary file and a rename: never half-written."""
+    directory = os.path.dirname(os.path.abspath(path))
+    try:
+        handle, temporary = tempfile.mkstemp(prefix=".meshprops-", dir=directory)
+    except OSError as exc:  # missing or read-only directory: one clear line, not a traceback
+        raise OutputFileError(path, exc.strerror or str(exc)) from None
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8") as stream:
+            stream.write(text)
+        os.replace(temporary, path)
+    except BaseException as exc:
+        if os.path.exists(temporary):
+            os.unlink(temporary)
+        if isinstance(exc, OSError) and not isinstance(exc, OutputFileError):
+            raise OutputFileError(path, exc.strerror or str(exc)) from None
+        raise

@@ -1,0 +1,119 @@
+"""Load a mesh file: tell its format from the content and hand it to that format's reader
+(one table, :data:`LOADERS`, maps a format to its reader).
+"""
+
+from __future__ import annotations
+
+import os
+
+import numpy as np
+
+from ..errors import MeshFileError
+from ..units import metres_per
+from .mesh import STL_HEADER_BYTES, Mesh, checked_mesh
+from .obj import read_obj
+from .ply import read_ply
+from .stl import read_ascii_stl, read_binary_stl
+
+#: format name -> reader of the file's bytes ``(source, data, unit, scale) -> Mesh``. Binary STL
+#: is not here: it is memory-mapped by :func:`read_binary_stl` instead of read into memory.
+LOADERS = {
+    "stl-ascii": read_ascii_stl,
+    "obj": read_obj,
+    "ply": read_ply,
+}
+
+
+def load_mesh(path: str | os.PathLike, length_unit: str = "mm") -> Mesh:
+    """Read a mesh file; the format is detected from the content.
+
+    Parameters
+    ----------
+    path
+        STL (binary or ASCII), OBJ or PLY (ASCII or binary) file.
+    length_unit
+        The unit the file's coordinates are in (``m``, ``cm``, ``mm``, ``in``, ``ft``).
+
+    Raises
+    ------
+    MeshFileError
+        Missing, unreadable, empty, truncated or malformed file, or a coordinate
+        that is NaN or infinite.
+    UnitError
+        Unknown ``length_unit``.
+    """
+    scale = metres_per(length_unit)
+    source = os.fspath(path)
+    try:
+        size = os.path.getsize(source)
+        with open(source, "rb") as handle:
+            head = handle.read(1024)
+    except FileNotFoundError:
+        raise MeshFileError(source, "no such file") from None
+    except IsADirectoryError:
+        raise MeshFileError(source, "is a directory, not a mesh file") from None
+    except OSError as exc:
+        raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None
+    if size == 0:
+        raise MeshFileError(source, "file is empty")
+
+    kind = _detect_format(source, head, size)
+    if kind == "stl-binary":
+        mesh = read_binary_stl(source, size, length_unit, scale)
+    else:
+        mesh = LOADERS[kind](source, _read_bytes(source), length_unit, scale)
+    return checked_mesh(mesh)
+
+
+def _detect_format(source: str, head: bytes, size: int) -> str:
+    extension = os.path.splitext(source)[1].lower()
+    if head.startswith(b"ply"):
+        return "ply"
+    binary_size_matches = False
+    if size >= STL_HEADER_BYTES:
+        count = int(np.frombuffer(head[80:84], "<u4")[0]) if len(head) >= 84 else -1
+        binary_size_matches = STL_HEADER_BYTES + 50 * count == size
+    starts_solid = head.lstrip()[:5].lower() == b"solid"
+    if binary_size_matches:
+        # A binary header may begin with "solid" too; a real ASCII file is text with facets.
+        if starts_solid and _looks_like_text(head) and b"facet" in head.lower():
+            return "stl-ascii"
+        return "stl-binary"
+    # A solid's name may hold non-ASCII bytes (UTF-8 names); a binary STL below 2^24 triangles
+    # always has a NUL byte in its triangle count, so "no NUL and facets" means text.
+    if starts_solid and (_looks_like_text(head) or (b"\0" not in head and b"facet" in head.lower())):
+        return "stl-ascii"
+    if extension == ".obj" or (extension not in (".stl", ".ply") and _looks_like_obj(head)):
+        return "obj"
+    if extension == ".stl":
+        if size < STL_HEADER_BYTES:
+            raise MeshFileError(source, f"binary STL: file is {size} bytes, shorter than the 84-byte header")
+        count = int(np.frombuffer(head[80:84], "<u4")[0])
+        expected = STL_HEADER_BYTES + 50 * count
+        problem = "truncated" if size < expected else "has trailing bytes"
+        raise MeshFileError(
+            source, f"binary STL {problem}: header says {count} triangles, expected {expected} bytes, found {size}"
+        )
+    raise MeshFileError(source, "unrecognised mesh format; expected STL, OBJ or PLY")
+
+
+def _looks_like_text(head: bytes) -> bool:
+    return all(b in b"\t\n\r" or 32 <= b < 127 for b in head)
+
+
+def _looks_like_obj(head: bytes) -> bool:
+    if not _looks_like_text(head):
+        return False
+    for line in head.splitlines():
+        word = line.split(maxsplit=1)[:1]
+        if word and not word[0].startswith(b"#"):
+            return word[0] in (b"v", b"vn", b"vt", b"f", b"o", b"g", b"mtllib", b"usemtl", b"s")
+    return False
+
+
+def _read_bytes(source: str) -> bytes:
+    try:
+        with open(source, "rb") as handle:
+            return handle.read()
+    except OSError as exc:
+        raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None

@@ -1,0 +1,1 @@
+"""Measuring: the options, one body, the assembly manifest, assemblies and their overlaps."""

@@ -1,0 +1,1 @@
+"""Output: one serializer (results -> plain dicts) and the renderers chosen by name."""

@@ -1,0 +1,1 @@
+"""Validation: findings (data, never log lines), the checks, and the safe repairs."""

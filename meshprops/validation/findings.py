@@ -1,0 +1,80 @@
+"""Findings: what validation found, as data (never log lines). Severity is ``error`` when
+the numbers would be wrong and ``warning`` otherwise; a report is valid exactly when it has no
+error.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ..geometry.faces import face_centroids
+from ..io import Mesh
+
+ERROR = "error"
+
+
+WARNING = "warning"
+
+
+#: How many example locations a finding carries.
+WHERE_LIMIT = 5
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Finding:
+    """One thing validation found.
+
+    Attributes
+    ----------
+    code : a stable name (see the README's table of finding codes)
+    severity : ``"error"`` (numbers would be wrong) or ``"warning"``
+    count : how many faces, edges, vertices or shells are affected (the message says which)
+    message : one sentence for a person
+    where : a few examples, each ``{"face": int, "point": [x, y, z]}`` (face index in the
+        file as read, centroid in m, input axes)
+    """
+
+    code: str
+    severity: str
+    count: int
+    message: str
+    where: tuple[dict, ...] = ()
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class ValidationReport:
+    """What validation found about one mesh.
+
+    ``valid`` is true when no finding is an error. ``extra`` holds mesh
+    statistics: ``shells`` (connected pieces), ``voids`` (correctly inward
+    shells inside another), ``holes`` (boundary loops), ``self_intersections_checked``.
+    """
+
+    findings: tuple[Finding, ...]
+    face_count: int
+    vertex_count: int
+    edge_count: int
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def valid(self) -> bool:
+        return not any(f.severity == ERROR for f in self.findings)
+
+    @property
+    def errors(self) -> tuple[Finding, ...]:
+        return tuple(f for f in self.findings if f.severity == ERROR)
+
+    @property
+    def warnings(self) -> tuple[Finding, ...]:
+        return tuple(f for f in self.findings if f.severity == WARNING)
+
+
+def where(face_indices, mesh: Mesh, *, limit: int = WHERE_LIMIT) -> tuple[dict, ...]:
+    """A few ``{"face": index, "point": centroid in m}`` locations (sorted face indices)."""
+    chosen = np.unique(np.asarray(face_indices, dtype=np.int64))[:limit]
+    if chosen.size == 0:
+        return ()
+    centroids = face_centroids(mesh, chosen)
+    return tuple({"face": int(f), "point": [float(x) for x in c]} for f, c in zip(chosen, centroids))
