@@ -2,7 +2,8 @@
 
 Every error is a :class:`MeshpropsError` and also a built-in type, carries the
 values it complains about as fields, and renders as one line naming the file
-(or option) and the problem. The CLI turns them into one stderr line and an exit
+(or option) and the problem. Every error pickles to an equal error (message, exit
+code and fields), so a worker process or a cluster returns it intact. The CLI turns them into one stderr line and an exit
 code in one place (:func:`meshprops.cli.main`).
 """
 
@@ -14,6 +15,14 @@ EXIT_INVALID = 1  # a check or validity failure: the mesh was read but is not so
 EXIT_USAGE = 2  # bad usage or unreadable input
 
 
+def _rebuild(cls: type, message: str, fields: dict) -> MeshpropsError:
+    """Unpickle an error without calling its ``__init__`` (whose arguments differ by class)."""
+    error = cls.__new__(cls)
+    Exception.__init__(error, message)
+    error.__dict__.update(fields)
+    return error
+
+
 class MeshpropsError(Exception):
     """Base class of every error meshprops raises on purpose."""
 
@@ -23,6 +32,11 @@ class MeshpropsError(Exception):
         self.source = source
         self.problem = message
         super().__init__(f"{source}: {message}" if source else message)
+
+    def __reduce__(self):
+        # The default reduction calls cls(*self.args), which fails for every subclass whose
+        # __init__ takes other arguments: a worker's error would come back as a TypeError.
+        return (_rebuild, (type(self), str(self), dict(self.__dict__)))
 
 
 class MeshFileError(MeshpropsError, ValueError):

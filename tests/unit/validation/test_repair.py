@@ -6,7 +6,6 @@ parallel-axis theorem); what cannot be repaired safely stays an error."""
 from __future__ import annotations
 
 import json
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -15,6 +14,7 @@ from hypothesis import strategies as st
 from meshes import (
     catalogue,  # tests/meshes/catalogue.py (tests/ is on sys.path; see conftest.py)
 )
+from paths import TESTS
 from typer.testing import CliRunner
 
 from meshprops import measure_mesh, mesh_from_arrays
@@ -24,7 +24,7 @@ from meshprops.io import writers
 from meshprops.validation.findings import ERROR, WARNING
 from meshprops.validation.repair import repair_mesh
 
-HERE = Path(__file__).resolve().parent
+HERE = TESTS
 runner = CliRunner()
 DENSITY = 2700.0  # aluminium, kg/m^3 (common practice)
 

@@ -1,15 +1,15 @@
 """Every JSON document meshprops prints validates against its published schema."""
 
 import json
-from pathlib import Path
 
 import jsonschema
 import pytest
+from paths import ROOT
 from typer.testing import CliRunner
 
 from meshprops.cli import app
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = ROOT
 SCHEMA = json.loads((ROOT / "meshprops" / "schema" / "measure.schema.json").read_text())
 SAMPLES = sorted(p for p in (ROOT / "sample_meshes").iterdir() if p.suffix in (".stl", ".obj", ".ply"))
 

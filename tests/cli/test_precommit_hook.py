@@ -4,11 +4,12 @@ import re
 import shlex
 from pathlib import Path
 
+from paths import ROOT
 from typer.testing import CliRunner
 
 from meshprops.cli import app
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = ROOT
 
 
 def _hook() -> dict:

@@ -12,6 +12,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from paths import ROOT
 from typer.testing import CliRunner
 
 from meshprops import measure_file
@@ -20,7 +21,7 @@ from meshprops.geometry import shapes
 from meshprops.io import writers
 
 runner = CliRunner()
-SCHEMA_PATH = Path(__file__).resolve().parents[1] / "meshprops" / "schema" / "measure.schema.json"
+SCHEMA_PATH = ROOT / "meshprops" / "schema" / "measure.schema.json"
 
 
 def invoke(*args: str):
@@ -341,7 +342,7 @@ def test_output_into_a_missing_directory_is_one_clean_error(capsys, tmp_path, br
 
 
 def _python_m(*args: str, cwd: Path):
-    environment = dict(os.environ, PYTHONPATH=str(Path(__file__).resolve().parents[1]))
+    environment = dict(os.environ, PYTHONPATH=str(ROOT))
     return subprocess.run(
         [sys.executable, "-m", "meshprops", *map(str, args)],
         capture_output=True,

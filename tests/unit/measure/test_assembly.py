@@ -20,6 +20,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from paths import ROOT
 from typer.testing import CliRunner
 
 from meshprops.cli import app
@@ -32,7 +33,7 @@ from meshprops.measure.manifest import load_manifest, parse_manifest
 from meshprops.output.csv_table import breakdown_csv
 from meshprops.output.serialize import assembly_document
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = ROOT
 ROVER = ROOT / "sample_meshes" / "rover.toml"
 MM = 1e-3
 

@@ -14,10 +14,10 @@ Format facts checked here (each format's specification, recalled from memory):
 import json
 import math
 import xml.etree.ElementTree as ET
-from pathlib import Path
 
 import numpy as np
 import pytest
+from paths import ROOT
 from typer.testing import CliRunner
 
 from meshprops.cli import app
@@ -37,7 +37,7 @@ from meshprops.physics.rotations import (
     rpy_from_rotation,
 )
 
-ROOT = Path(__file__).resolve().parent.parent
+ROOT = ROOT
 ROVER = ROOT / "sample_meshes" / "rover.toml"
 
 
