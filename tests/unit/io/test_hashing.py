@@ -1,0 +1,37 @@
+"""Content hashes against the standard library's SHA-256 of the same bytes (FIPS 180-4 test vector)."""
+
+from __future__ import annotations
+
+import hashlib
+
+import pytest
+
+from meshprops.errors import MeshFileError
+from meshprops.io.hashing import file_sha256
+
+
+def test_the_published_test_vector_of_abc(tmp_path):
+    # FIPS 180-4 / NIST example: SHA-256("abc") (from memory; also what hashlib gives).
+    path = tmp_path / "abc.bin"
+    path.write_bytes(b"abc")
+    assert file_sha256(path) == "sha256:ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+
+
+def test_a_file_larger_than_one_block_hashes_as_a_whole(tmp_path):
+    data = bytes(range(256)) * 9000  # 2.3 MB: three blocks
+    path = tmp_path / "big.bin"
+    path.write_bytes(data)
+    assert file_sha256(path) == "sha256:" + hashlib.sha256(data).hexdigest()
+
+
+def test_one_changed_byte_changes_the_hash(tmp_path):
+    path = tmp_path / "part.stl"
+    path.write_bytes(b"\0" * 200)
+    before = file_sha256(path)
+    path.write_bytes(b"\0" * 199 + b"\1")
+    assert file_sha256(path) != before
+
+
+def test_a_missing_file_is_a_mesh_file_error(tmp_path):
+    with pytest.raises(MeshFileError, match="no such file"):
+        file_sha256(tmp_path / "missing.stl")
