@@ -9,7 +9,7 @@ from __future__ import annotations
 import hashlib
 import os
 
-from ..errors import MeshFileError
+from .reading import file_errors
 
 _BLOCK_BYTES = 1 << 20
 
@@ -18,14 +18,7 @@ def file_sha256(path: str | os.PathLike) -> str:
     """``"sha256:<64 hex digits>"`` of the file's content."""
     digest = hashlib.sha256()
     source = os.fspath(path)
-    try:
-        with open(source, "rb") as handle:
-            for block in iter(lambda: handle.read(_BLOCK_BYTES), b""):
-                digest.update(block)
-    except FileNotFoundError:
-        raise MeshFileError(source, "no such file") from None
-    except IsADirectoryError:
-        raise MeshFileError(source, "is a directory, not a mesh file") from None
-    except OSError as exc:
-        raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None
+    with file_errors(source), open(source, "rb") as handle:
+        for block in iter(lambda: handle.read(_BLOCK_BYTES), b""):
+            digest.update(block)
     return "sha256:" + digest.hexdigest()

@@ -13,6 +13,7 @@ from ..units import metres_per
 from .mesh import STL_HEADER_BYTES, Mesh, checked_mesh
 from .obj import read_obj
 from .ply import read_ply
+from .reading import file_errors
 from .stl import read_ascii_stl, read_binary_stl
 
 #: format name -> reader of the file's bytes ``(source, data, unit, scale) -> Mesh``. Binary STL
@@ -44,16 +45,10 @@ def load_mesh(path: str | os.PathLike, length_unit: str = "mm") -> Mesh:
     """
     scale = metres_per(length_unit)
     source = os.fspath(path)
-    try:
+    with file_errors(source):
         size = os.path.getsize(source)
         with open(source, "rb") as handle:
             head = handle.read(1024)
-    except FileNotFoundError:
-        raise MeshFileError(source, "no such file") from None
-    except IsADirectoryError:
-        raise MeshFileError(source, "is a directory, not a mesh file") from None
-    except OSError as exc:
-        raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None
     if size == 0:
         raise MeshFileError(source, "file is empty")
 
@@ -112,8 +107,5 @@ def _looks_like_obj(head: bytes) -> bool:
 
 
 def _read_bytes(source: str) -> bytes:
-    try:
-        with open(source, "rb") as handle:
-            return handle.read()
-    except OSError as exc:
-        raise MeshFileError(source, f"cannot read: {exc.strerror or exc}") from None
+    with file_errors(source), open(source, "rb") as handle:
+        return handle.read()
