@@ -22,6 +22,8 @@ _VERSION = re.compile(r'("meshprops_version": ")[^"]*(")|(meshprops )\d+\.\d+\.\
 
 
 def mask(text: str) -> str:
+    """Mask the version and the checkout's own folder (manifest mesh paths are absolute)."""
+    text = text.replace(str(ROOT) + "/", "<checkout>/")
     return _VERSION.sub(lambda m: (m.group(1) + "<version>" + m.group(2)) if m.group(1) else m.group(3) + "<version>", text)
 
 
