@@ -243,12 +243,18 @@ class RotatingVector:
         return None if self.angle is None else math.degrees(self.angle)
 
 
+def _wrapped(angle: float) -> float:
+    """``angle`` (rad) in ``[0, 2π)``; ``%`` alone can round a tiny negative angle up to 2π."""
+    wrapped = float(angle) % (2.0 * math.pi)
+    return 0.0 if wrapped >= 2.0 * math.pi else wrapped
+
+
 def _rotating(components, axes: ShaftAxes, scale: float) -> RotatingVector:
     components = np.asarray(components, dtype=np.float64)
     magnitude = float(np.hypot(components[0], components[1]))
     angle = None
     if magnitude > ZERO_RTOL * scale:
-        angle = float(math.atan2(components[1], components[0]) % (2.0 * math.pi))
+        angle = _wrapped(math.atan2(components[1], components[0]))
     return RotatingVector(components, axes.radial_vector(components), magnitude, angle)
 
 
@@ -773,7 +779,7 @@ def balance(
                 PlaneUnbalance(
                     position=position,
                     unbalance=vector,
-                    correction_angle=None if vector.angle is None else (vector.angle + math.pi) % (2.0 * math.pi),
+                    correction_angle=None if vector.angle is None else _wrapped(vector.angle + math.pi),
                     correction_mass=None if radius is None else vector.magnitude / radius,
                     permissible=allowed,
                     share=share,

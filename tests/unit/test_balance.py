@@ -533,3 +533,12 @@ def test_results_are_frozen():
     result = run(1.0, (0, 0, 0), np.diag([1.0, 1.0, 2.0]))
     with pytest.raises(AttributeError):
         result.mass = 2.0  # type: ignore[misc]
+
+
+def test_angles_stay_below_a_full_turn():
+    # a tiny negative v component must read as (nearly) 0 deg, never 360 deg
+    result = run(1.0, (1e-3, -1e-20, 0.0), np.diag([1.0, 1.0, 2.0]), correction_planes=(-0.1, 0.1))
+    assert 0.0 <= result.static.unbalance.angle < 2 * math.pi
+    assert result.static.unbalance.angle_deg < 360.0
+    for plane in result.planes:
+        assert 0.0 <= plane.correction_angle < 2 * math.pi
