@@ -8,11 +8,13 @@ SI throughout (keys without a unit suffix), plus the figures the balancing trade
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
 
 import numpy as np
 
-from meshprops.physics.balance import (
+from ..physics.balance import (
     BALANCE_GRADES,
+    EQUAL_MOMENT_RTOL,
     G_MM_PER_KG_M,
     GRADE_TABLE_FROM_MEMORY,
     GRADE_TABLE_SOURCE,
@@ -21,6 +23,12 @@ from meshprops.physics.balance import (
     BalanceResult,
     RotatingVector,
 )
+from ..units import SI_UNITS
+from ..version import __version__
+from .serialize import finding_to_dict
+
+if TYPE_CHECKING:
+    from ..measure.rotor import RotorMeasurement
 
 BALANCE_SCHEMA_NAME = "meshprops.balance"
 BALANCE_SCHEMA_VERSION = 1
@@ -247,6 +255,58 @@ def balance_result_to_dict(result: BalanceResult) -> dict:
 
 
 
+BALANCE_UNITS = dict(
+    SI_UNITS,
+    force="N",
+    moment="N*m",
+    unbalance="kg*m (keys ending _g_mm: g*mm)",
+    couple_unbalance="kg*m^2 (keys ending _g_mm2: g*mm^2)",
+    grade="mm/s (balance quality grade G = e_per * omega)",
+    specific_energy="J/kg",
+)
+
+
+def balance_document(rotor: RotorMeasurement) -> dict:
+    """The whole JSON document of ``meshprops balance`` for a measured part."""
+    body = rotor.body
+    findings = []
+    if body is not None:
+        findings = [finding_to_dict(f) for f in body.findings]
+    else:
+        for item in rotor.assembly.items:
+            findings += [dict(finding_to_dict(f), body=item.name) for f in item.measurement.findings]
+    source_input: dict = {"kind": rotor.kind, "length_unit": rotor.length_unit, "findings": findings}
+    if body is not None:
+        source_input.update(
+            density=body.density, density_assumed=body.density_assumed, bodies=1, point_masses=0, faces=body.face_count
+        )
+    else:
+        items = rotor.assembly.items
+        source_input.update(
+            density=None,
+            density_assumed=False,
+            bodies=sum(1 for item in items if item.kind == "mesh"),
+            point_masses=sum(1 for item in items if item.kind == "point_mass"),
+            faces=int(rotor.assembly.total.face_count),
+        )
+    doc = {
+        "schema": BALANCE_SCHEMA_NAME,
+        "schema_version": BALANCE_SCHEMA_VERSION,
+        "meshprops_version": __version__,
+        "units": dict(BALANCE_UNITS, input_length_unit=rotor.length_unit),
+        "conventions": BALANCE_CONVENTIONS,
+        "cautions": list(BALANCE_CAUTIONS),
+        "grade_table": grade_table_to_dict(),
+        "source": rotor.source,
+        "input": source_input,
+        "geometry": {"axial_extent": _list(rotor.axial_extent), "max_radius": rotor.max_radius},
+        "correction_planes_from": rotor.planes_from,
+    }
+    doc.update(balance_result_to_dict(rotor.balance))
+    doc["flywheel"].update(max_radius=rotor.max_radius, rim_speed=rotor.rim_speed)
+    return doc
+
+
 # ---------------------------------------------------------------------------- terminal table
 
 
@@ -288,13 +348,13 @@ def render_balance_table(doc: dict) -> str:
     couple = doc["couple_unbalance"]
     tilt = doc["principal_tilt"]
     lines.append("Unbalance of the part as modelled")
-    lines.append(f"  {'static  (centre of mass off axis)':<38}{_number(static['unbalance_g_mm']):>12} g*mm    {_angle(static['angle_deg'])}")
+    lines.append(f"  {'static  (centre of mass off axis)':<38}{_number(static['unbalance_g_mm']):>10} g*mm    {_angle(static['angle_deg'])}")
     lines.append(
         f"  {'':<38}offset {_number(static['com_offset_distance'] * 1e6)} um at {_mm(static['com_axial_position'])} along the shaft"
     )
-    lines.append(f"  {'couple  (shaft not a principal axis)':<38}{_number(couple['unbalance_g_mm2']):>12} g*mm^2  {_angle(couple['angle_deg'])}")
+    lines.append(f"  {'couple  (shaft not a principal axis)':<38}{_number(couple['unbalance_g_mm2']):>10} g*mm^2  {_angle(couple['angle_deg'])}")
     unique = "" if tilt["axis_unique"] else " (moment shared with another axis)"
-    lines.append(f"  {'nearest principal axis from the shaft':<38}{_number(tilt['angle_deg']):>12} deg{unique}")
+    lines.append(f"  {'nearest principal axis from the shaft':<38}{_number(tilt['angle_deg']):>10} deg{unique}")
     lines.append("")
 
     verdict = "PASSES" if check["passes"] else "FAILS"
@@ -314,16 +374,16 @@ def render_balance_table(doc: dict) -> str:
         heading += f", correction radius {_mm(radius)}" if radius is not None else ", no correction radius given"
         lines.append(heading)
         lines.append(
-            f"    {'plane':<6}{'position':>12}{'unbalance':>14}{'angle':>11}{'share':>7}{'allowed':>14}  {'check':<6}add mass"
+            f"    {'plane':<6}{'position':>12} {'unbalance':>15} {'angle':>10} {'share':>6} {'allowed':>15}  {'check':<6}add mass"
         )
         for number, plane in enumerate(correction["planes"], start=1):
             add = "-"
             if plane["correction_mass_g"] is not None and plane["correction_angle_deg"] is not None:
                 add = f"{_number(plane['correction_mass_g'])} g at {plane['correction_angle_deg']:.1f} deg"
             lines.append(
-                f"    {number:<6}{_mm(plane['position']):>12}{_number(plane['unbalance_g_mm']) + ' g*mm':>14}"
-                f"{_angle(plane['angle_deg']):>11}{plane['share'] * 100:>6.0f}%"
-                f"{_number(plane['permissible_unbalance_g_mm']) + ' g*mm':>14}  {_verdict(plane['passes']):<6}{add}"
+                f"    {number:<6}{_mm(plane['position']):>12} {_number(plane['unbalance_g_mm']) + ' g*mm':>15}"
+                f" {_angle(plane['angle_deg']):>10} {plane['share'] * 100:>5.0f}%"
+                f" {_number(plane['permissible_unbalance_g_mm']) + ' g*mm':>15}  {_verdict(plane['passes']):<6}{add}"
             )
     else:
         lines.append("  no correction planes: static unbalance checked against U_per; couple not checked")
@@ -332,12 +392,12 @@ def render_balance_table(doc: dict) -> str:
     bearings = doc.get("bearings")
     if bearings:
         lines.append("Rotating bearing forces at speed (force of the rotor on each bearing)")
-        lines.append(f"    {'bearing':<8}{'position':>12}{'static':>12}{'couple':>12}{'total':>12}{'angle':>11}")
+        lines.append(f"    {'bearing':<8}{'position':>12} {'static':>12} {'couple':>12} {'total':>12} {'angle':>10}")
         for number, bearing in enumerate(bearings, start=1):
             lines.append(
-                f"    {number:<8}{_mm(bearing['position']):>12}{_number(bearing['static_force']['magnitude']) + ' N':>12}"
-                f"{_number(bearing['couple_force']['magnitude']) + ' N':>12}{_number(bearing['force']['magnitude']) + ' N':>12}"
-                f"{_angle(bearing['force']['angle_deg']):>11}"
+                f"    {number:<8}{_mm(bearing['position']):>12} {_number(bearing['static_force']['magnitude']) + ' N':>12}"
+                f" {_number(bearing['couple_force']['magnitude']) + ' N':>12} {_number(bearing['force']['magnitude']) + ' N':>12}"
+                f" {_angle(bearing['force']['angle_deg']):>10}"
             )
         lines.append("")
 
@@ -372,7 +432,9 @@ def render_balance_table(doc: dict) -> str:
             f"    I{number} = {_number(axis['moment'], 6):<12} kg*m^2  axis {_vector(axis['axis'])}  {axis['stability']:<9} {rate}"
         )
     for label, close, gap in zip(("I1, I2", "I2, I3"), spin["near_equal"], spin["relative_gaps"]):
-        if close:
+        if close and gap <= EQUAL_MOMENT_RTOL:
+            lines.append(f"    {label} equal: the axes in their plane are not unique (marginal spins)")
+        elif close:
             lines.append(f"    {label} within {gap:.1%} of each other: those spins are sensitive to small changes")
     lines.append("")
     lines.append("Units: g*mm, g*mm^2, mm, N, J as shown; the JSON is SI plus the g*mm figures.")

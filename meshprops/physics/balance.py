@@ -41,12 +41,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from meshprops.errors import InputValueError
+from ..errors import InputValueError
+from .mass import MassProperties, rotate_tensor
+from .principal import SYMMETRY_RTOL, principal_frame
 
 #: Relative size under which a vector counts as numerically zero (its angle is then undefined).
 ZERO_RTOL = 1e-12
-#: Relative tolerance for "these principal moments coincide" (same value as the principal frame's).
-EQUAL_MOMENT_RTOL = 1e-6
+#: Relative tolerance for "these principal moments coincide": the principal frame's.
+EQUAL_MOMENT_RTOL = SYMMETRY_RTOL
 #: A relative gap between two principal moments below this is flagged as near-equal: small
 #: changes of the products of inertia (tolerances, added parts) then swing the principal axes
 #: by large angles (the swing is about the product change divided by the gap). Our own choice.
@@ -588,7 +590,8 @@ def principal_tilt(inertia_about_com, direction) -> PrincipalTilt:
     tensor = np.asarray(inertia_about_com, dtype=np.float64)
     tensor = (tensor + tensor.T) / 2.0
     direction = np.asarray(direction, dtype=np.float64)
-    moments, vectors = np.linalg.eigh(tensor)
+    frame = principal_frame(tensor)
+    moments, vectors = frame.moments, frame.axes.T  # columns: principal axes
     scale = max(float(np.abs(moments).max()), np.finfo(float).tiny)
     groups: list[list[int]] = []
     for index in range(3):  # ascending: a moment joins the group of its equal predecessor
@@ -613,8 +616,8 @@ def principal_tilt(inertia_about_com, direction) -> PrincipalTilt:
 
 def free_spin(inertia_about_com, angular_speed: float) -> FreeSpin:
     """Stability of a free spin at ``angular_speed`` (rad/s) about each principal axis of ``inertia_about_com``."""
-    tensor = np.asarray(inertia_about_com, dtype=np.float64)
-    moments, vectors = np.linalg.eigh((tensor + tensor.T) / 2.0)
+    frame = principal_frame(inertia_about_com)
+    moments, vectors = frame.moments, frame.axes.T  # columns: principal axes, the measure's sign rule
     largest = max(float(moments[2]), np.finfo(float).tiny)
     tolerance = EQUAL_MOMENT_RTOL * largest
     axes = []
@@ -756,8 +759,7 @@ def balance(
         unbalance=_rotating(static_components, axes, unbalance_scale),
     )
 
-    in_shaft_axes = axes.rotation @ inertia @ axes.rotation.T  # R·I·Rᵀ
-    in_shaft_axes = (in_shaft_axes + in_shaft_axes.T) / 2.0
+    in_shaft_axes = rotate_tensor(inertia, axes.rotation)
     couple_components = -np.array([in_shaft_axes[0, 2], in_shaft_axes[1, 2]])  # P_ua, P_va
     couple = CoupleUnbalance(
         unbalance=_rotating(couple_components, axes, couple_scale),
@@ -862,3 +864,8 @@ def balance(
         free_spin=free_spin(inertia, speed),
         flywheel=Flywheel(inertia_about_shaft, stored, inertia_about_shaft * speed, stored / mass),
     )
+
+
+def balance_of(properties: MassProperties, **options) -> BalanceResult:
+    """:func:`balance` of measured mass properties (SI, input frame); ``options`` as for :func:`balance`."""
+    return balance(properties.mass, properties.center_of_mass, properties.inertia_about_com, **options)
