@@ -22,7 +22,16 @@ import numpy as np
 
 from ..errors import InputValueError, InvalidMeshError
 from ..io.loaders import load_mesh
-from ..physics.balance import BalanceGrade, BalanceResult, balance_of, find_grade
+from ..physics.balance import (
+    BalanceGrade,
+    BalanceResult,
+    axial_pair,
+    balance_of,
+    find_grade,
+    finite_vector,
+    positive_number,
+    unit_vector,
+)
 from ..physics.mass import MassProperties
 from ..units import rpm_to_rad_per_s
 from ..validation.findings import Finding
@@ -30,34 +39,6 @@ from .assembly import AssemblyResult, measure_assembly
 from .body import BodyMeasurement, measure_mesh
 from .manifest import load_manifest
 from .options import MeasureOptions
-
-
-def _pair(values, name: str) -> tuple[float, float] | None:
-    if values is None:
-        return None
-    try:
-        pair = tuple(float(v) for v in values)
-    except (TypeError, ValueError):
-        raise InputValueError(name, "two positions along the shaft", values) from None
-    if len(pair) != 2 or not all(math.isfinite(v) for v in pair):
-        raise InputValueError(name, "two finite positions along the shaft", values)
-    if pair[0] == pair[1]:
-        raise InputValueError(name, "two different positions along the shaft", values)
-    return pair
-
-
-def _vector(values, name: str, *, nonzero: bool = False) -> np.ndarray | None:
-    if values is None:
-        return None
-    try:
-        vector = np.array(values, dtype=np.float64).reshape(-1)
-    except (TypeError, ValueError):
-        raise InputValueError(name, "three finite numbers X,Y,Z", values) from None
-    if vector.shape != (3,) or not np.all(np.isfinite(vector)):
-        raise InputValueError(name, "three finite numbers X,Y,Z", values)
-    if nonzero and not np.any(vector):
-        raise InputValueError(name, "a non-zero direction", values)
-    return vector
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -92,28 +73,21 @@ class RotorOptions:
 
     def __post_init__(self) -> None:
         set_ = object.__setattr__
-        set_(self, "axis_point", _vector(self.axis_point, "axis point"))
-        set_(self, "axis_direction", _vector(self.axis_direction, "axis direction", nonzero=True))
-        if self.axis_point is None or self.axis_direction is None:
-            raise InputValueError("shaft", "an axis point and an axis direction", None)
-        try:
-            rpm = float(self.rpm)
-        except (TypeError, ValueError):
-            raise InputValueError("rpm", "a speed in rev/min", self.rpm) from None
-        if not math.isfinite(rpm) or rpm <= 0.0:
-            raise InputValueError("rpm", "a finite speed > 0 rev/min", self.rpm)
-        set_(self, "rpm", rpm)
+        set_(self, "axis_point", finite_vector(self.axis_point, "axis point"))
+        unit_vector(self.axis_direction, "axis direction")  # refuses a zero direction now, before any file is read
+        set_(self, "axis_direction", finite_vector(self.axis_direction, "axis direction"))
+        set_(self, "rpm", positive_number(self.rpm, "rpm", "rev/min"))
         if not isinstance(self.grade, BalanceGrade):
             set_(self, "grade", find_grade(self.grade))
-        set_(self, "bearing_positions", _pair(self.bearing_positions, "bearing positions"))
-        set_(self, "correction_planes", _pair(self.correction_planes, "correction planes"))
+        set_(self, "bearing_positions", axial_pair(self.bearing_positions, "bearing positions"))
+        set_(self, "correction_planes", axial_pair(self.correction_planes, "correction planes"))
         if self.correction_radius is not None:
-            radius = float(self.correction_radius)
-            if not math.isfinite(radius) or radius <= 0.0:
-                raise InputValueError("correction radius", "a finite radius > 0", self.correction_radius)
-            set_(self, "correction_radius", radius)
-        set_(self, "angle_reference", _vector(self.angle_reference, "angle reference", nonzero=True))
-        set_(self, "precession_axis", _vector(self.precession_axis, "precession axis", nonzero=True))
+            set_(self, "correction_radius", positive_number(self.correction_radius, "correction radius", "(input unit)"))
+        if self.angle_reference is not None:
+            unit_vector(self.angle_reference, "angle reference")
+            set_(self, "angle_reference", finite_vector(self.angle_reference, "angle reference"))
+        if self.precession_axis is not None:
+            set_(self, "precession_axis", unit_vector(self.precession_axis, "precession axis"))
         if (self.precession_axis is None) != (self.precession_rate is None):
             raise InputValueError("precession", "both an axis and a rate, or neither", self.precession_rate)
         if self.precession_rate is not None:
@@ -143,6 +117,7 @@ class RotorMeasurement:
     axial_extent : (2,) m, lowest and highest position of the geometry along the shaft
     max_radius : m, largest distance of the geometry (corners, point masses) from the shaft axis
     planes_from : ``"given"`` or ``"part_ends"`` (the correction planes are ``axial_extent``)
+    rotor : the options as given (input unit)
     balance : the balance result
     """
 
@@ -155,6 +130,7 @@ class RotorMeasurement:
     axial_extent: np.ndarray
     max_radius: float
     planes_from: str
+    rotor: RotorOptions
     balance: BalanceResult
 
     @property
@@ -264,5 +240,6 @@ def measure_rotor(
         axial_extent=np.array([low, high]),
         max_radius=max_radius,
         planes_from=planes_from,
+        rotor=rotor,
         balance=result,
     )

@@ -303,6 +303,7 @@ def balance_document(rotor: RotorMeasurement) -> dict:
         "correction_planes_from": rotor.planes_from,
     }
     doc.update(balance_result_to_dict(rotor.balance))
+    doc["speed"]["rpm"] = rotor.rotor.rpm  # as typed (the serializer's is converted back from rad/s)
     doc["flywheel"].update(max_radius=rotor.max_radius, rim_speed=rotor.rim_speed)
     return doc
 
@@ -342,6 +343,12 @@ def render_balance_table(doc: dict) -> str:
         f"  angles from u = {_vector(shaft['angle_reference'])} towards v = {_vector(shaft['angle_quadrature'])}"
         " (right-handed about the shaft)"
     )
+    source_input = doc.get("input", {})
+    for finding in source_input.get("findings", []):
+        where = f" ({finding['body']})" if "body" in finding else ""
+        lines.append(f"  {finding['severity']}{where}: {finding['code']}: {finding['message']}")
+    if source_input.get("density_assumed"):
+        lines.append("  density ASSUMED (none given): unbalance, forces and energy scale with it")
     lines.append("")
 
     static = doc["static_unbalance"]

@@ -177,7 +177,8 @@ class ShaftAxes:
         return components[0] * self.reference + components[1] * self.quadrature
 
 
-def _finite_vector(value, name: str) -> np.ndarray:
+def finite_vector(value, name: str) -> np.ndarray:
+    """``value`` as a finite (3,) float64 array, or :class:`InputValueError` naming ``name``."""
     try:
         vector = np.asarray(value, dtype=np.float64).reshape(-1)
     except (TypeError, ValueError):
@@ -187,8 +188,9 @@ def _finite_vector(value, name: str) -> np.ndarray:
     return vector
 
 
-def _unit_vector(value, name: str) -> np.ndarray:
-    vector = _finite_vector(value, name)
+def unit_vector(value, name: str) -> np.ndarray:
+    """``value`` normalized; a zero or non-finite vector raises :class:`InputValueError` naming ``name``."""
+    vector = finite_vector(value, name)
     length = float(np.linalg.norm(vector))
     if length == 0.0:
         raise InputValueError(name, "a non-zero direction", value)
@@ -202,13 +204,13 @@ def shaft_axes(point, direction, reference=None) -> ShaftAxes:
     shaft; it must not be parallel to the shaft. See the module docstring for the
     default.
     """
-    point = _finite_vector(point, "axis point")
-    axis = _unit_vector(direction, "axis direction")
+    point = finite_vector(point, "axis point")
+    axis = unit_vector(direction, "axis direction")
     if reference is None:
         # smallest |component| first; np.argmin keeps the first index on a tie (x before y before z)
         reference = np.eye(3)[int(np.argmin(np.abs(axis)))]
     else:
-        reference = _finite_vector(reference, "angle reference")
+        reference = finite_vector(reference, "angle reference")
     projected = reference - (reference @ axis) * axis
     length = float(np.linalg.norm(projected))
     if length <= 1e-9 * max(float(np.linalg.norm(reference)), np.finfo(float).tiny):
@@ -639,7 +641,7 @@ def free_spin(inertia_about_com, angular_speed: float) -> FreeSpin:
 def gyroscopic_moment(inertia_about_com, direction, angular_speed: float, precession_axis, precession_rate: float):
     """Gyroscopic moment (N·m) for spin ``angular_speed`` about unit ``direction`` precessing at
     ``precession_rate`` (rad/s) about ``precession_axis`` (normalized here). See :class:`GyroscopicMoment`."""
-    axis = _unit_vector(precession_axis, "precession axis")
+    axis = unit_vector(precession_axis, "precession axis")
     rate = float(precession_rate)
     if not math.isfinite(rate):
         raise InputValueError("precession rate", "a finite rate in rad/s", precession_rate)
@@ -648,7 +650,8 @@ def gyroscopic_moment(inertia_about_com, direction, angular_speed: float, preces
     return GyroscopicMoment(axis, rate, moment, float(np.linalg.norm(moment)))
 
 
-def _positions(values, name: str) -> tuple[float, float] | None:
+def axial_pair(values, name: str) -> tuple[float, float] | None:
+    """Two different finite axial positions (any length unit); ``None`` passes through."""
     if values is None:
         return None
     try:
@@ -662,7 +665,8 @@ def _positions(values, name: str) -> tuple[float, float] | None:
     return pair
 
 
-def _positive(value, name: str, unit: str) -> float:
+def positive_number(value, name: str, unit: str) -> float:
+    """``value`` as a finite float > 0, or :class:`InputValueError` naming ``name`` and ``unit``."""
     try:
         number = float(value)
     except (TypeError, ValueError):
@@ -726,8 +730,8 @@ def balance(
     precession_axis, precession_rate : (3,) and rad/s, optional, together; gives the
         gyroscopic moment
     """
-    mass = _positive(mass, "mass", "kg")
-    center = _finite_vector(center_of_mass, "centre of mass")
+    mass = positive_number(mass, "mass", "kg")
+    center = finite_vector(center_of_mass, "centre of mass")
     try:
         inertia = np.asarray(inertia_about_com, dtype=np.float64)
     except (TypeError, ValueError):
@@ -735,12 +739,12 @@ def balance(
     if inertia.shape != (3, 3) or not np.all(np.isfinite(inertia)):
         raise InputValueError("inertia about the centre of mass", "a finite 3x3 tensor in kg*m^2", inertia_about_com)
     inertia = (inertia + inertia.T) / 2.0
-    speed = _positive(angular_speed, "angular speed", "rad/s")
+    speed = positive_number(angular_speed, "angular speed", "rad/s")
     required = grade if isinstance(grade, BalanceGrade) else find_grade(grade)
     axes = shaft_axes(axis_point, axis_direction, angle_reference)
-    planes_at = _positions(correction_planes, "correction planes")
-    bearings_at = _positions(bearing_positions, "bearing positions")
-    radius = None if correction_radius is None else _positive(correction_radius, "correction radius", "m")
+    planes_at = axial_pair(correction_planes, "correction planes")
+    bearings_at = axial_pair(bearing_positions, "bearing positions")
+    radius = None if correction_radius is None else positive_number(correction_radius, "correction radius", "m")
     if (precession_axis is None) != (precession_rate is None):
         raise InputValueError("precession", "both an axis and a rate, or neither", (precession_axis, precession_rate))
 
