@@ -30,6 +30,7 @@ from ..physics.balance import (
     find_grade,
     finite_vector,
     positive_number,
+    shaft_axes,
     unit_vector,
 )
 from ..physics.mass import MassProperties
@@ -86,6 +87,7 @@ class RotorOptions:
         if self.angle_reference is not None:
             unit_vector(self.angle_reference, "angle reference")
             set_(self, "angle_reference", finite_vector(self.angle_reference, "angle reference"))
+            shaft_axes(self.axis_point, self.axis_direction, self.angle_reference)  # not parallel to the shaft
         if self.precession_axis is not None:
             set_(self, "precession_axis", unit_vector(self.precession_axis, "precession axis"))
         if (self.precession_axis is None) != (self.precession_rate is None):

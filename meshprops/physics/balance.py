@@ -177,14 +177,19 @@ class ShaftAxes:
         return components[0] * self.reference + components[1] * self.quadrature
 
 
+def _shown(value):
+    """An input as an error message shows it (arrays as plain lists)."""
+    return value.tolist() if isinstance(value, np.ndarray) else value
+
+
 def finite_vector(value, name: str) -> np.ndarray:
     """``value`` as a finite (3,) float64 array, or :class:`InputValueError` naming ``name``."""
     try:
         vector = np.asarray(value, dtype=np.float64).reshape(-1)
     except (TypeError, ValueError):
-        raise InputValueError(name, "three finite numbers", value) from None
+        raise InputValueError(name, "three finite numbers", _shown(value)) from None
     if vector.shape != (3,) or not np.all(np.isfinite(vector)):
-        raise InputValueError(name, "three finite numbers", value)
+        raise InputValueError(name, "three finite numbers", _shown(value))
     return vector
 
 
@@ -193,7 +198,7 @@ def unit_vector(value, name: str) -> np.ndarray:
     vector = finite_vector(value, name)
     length = float(np.linalg.norm(vector))
     if length == 0.0:
-        raise InputValueError(name, "a non-zero direction", value)
+        raise InputValueError(name, "a non-zero direction", _shown(value))
     return vector / length
 
 
@@ -214,7 +219,7 @@ def shaft_axes(point, direction, reference=None) -> ShaftAxes:
     projected = reference - (reference @ axis) * axis
     length = float(np.linalg.norm(projected))
     if length <= 1e-9 * max(float(np.linalg.norm(reference)), np.finfo(float).tiny):
-        raise InputValueError("angle reference", "a direction not parallel to the shaft", reference)
+        raise InputValueError("angle reference", "a direction not parallel to the shaft", _shown(reference))
     u = projected / length
     v = np.cross(axis, u)
     return ShaftAxes(point, axis, u, v, np.array([u, v, axis]))
@@ -657,7 +662,7 @@ def axial_pair(values, name: str) -> tuple[float, float] | None:
     try:
         pair = tuple(float(v) for v in values)
     except (TypeError, ValueError):
-        raise InputValueError(name, "two positions along the shaft in metres", values) from None
+        raise InputValueError(name, "two positions along the shaft", values) from None
     if len(pair) != 2 or not all(math.isfinite(v) for v in pair):
         raise InputValueError(name, "two finite positions along the shaft", values)
     if pair[0] == pair[1]:

@@ -192,6 +192,7 @@ def test_invalid_mesh_is_never_balanced(tmp_path):
         ({"correction_planes": (1.0, 1.0)}, "correction planes"),
         ({"correction_radius": -2.0}, "correction radius"),
         ({"precession_axis": (1.0, 0.0, 0.0)}, "precession"),
+        ({"angle_reference": (0.0, 0.0, -2.0)}, "angle reference"),
     ],
 )
 def test_bad_rotor_options_are_refused_before_reading(changes, match):
