@@ -377,7 +377,7 @@ def render_balance_table(doc: dict) -> str:
     if correction:
         radius = correction["radius"]
         origin = doc.get("correction_planes_from")
-        heading = "  correction planes" + (f" ({origin})" if origin else "")
+        heading = "  correction planes" + (" at the part's two ends along the shaft" if origin == "part_ends" else "")
         heading += f", correction radius {_mm(radius)}" if radius is not None else ", no correction radius given"
         lines.append(heading)
         lines.append(
