@@ -542,3 +542,14 @@ def test_angles_stay_below_a_full_turn():
     assert result.static.unbalance.angle_deg < 360.0
     for plane in result.planes:
         assert 0.0 <= plane.correction_angle < 2 * math.pi
+
+
+def test_readme_grade_table_matches_the_code():
+    # the README's table of grades (between the balance-grades markers) is the code's table
+    from paths import ROOT
+
+    text = (ROOT / "README.md").read_text(encoding="utf-8")
+    block = text.split("<!-- balance-grades -->")[1].split("<!-- /balance-grades -->")[0]
+    rows = [line for line in block.strip().splitlines()[2:]]
+    assert rows == [f"| {g.label} | {g.applications} |" for g in bal.BALANCE_GRADES]
+    assert bal.GRADE_TABLE_SOURCE in text
