@@ -46,7 +46,6 @@ def balance(
     angle_reference: Annotated[Optional[str], typer.Option("--angle-reference", help="Direction X,Y,Z that angles are measured from (projected perpendicular to the shaft); default: the input axis least along the shaft.")] = None,
     precession_axis: Annotated[Optional[str], typer.Option("--precession-axis", help="Axis X,Y,Z the shaft itself turns about (with --precession-rate): gyroscopic moment.")] = None,
     precession_rate: Annotated[Optional[float], typer.Option("--precession-rate", help="Rate in rad/s at which the shaft turns about --precession-axis.")] = None,
-    require_pass: Annotated[bool, typer.Option("--require-pass", help="Exit 1 when the part as modelled fails the grade (default: report and exit 0).")] = False,
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document (SI plus g*mm figures) instead of a table.")] = False,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
 ) -> None:
@@ -82,4 +81,4 @@ def balance(
     if doc["input"].get("density_assumed"):
         say("no --density given: assumed 1000 kg/m^3 (water); unbalance, loads and energy scale with density")
     passes = doc["passes"]
-    raise typer.Exit(EXIT_INVALID if (require_pass and not passes) else EXIT_OK)
+    raise typer.Exit(EXIT_OK if passes else EXIT_INVALID)  # a failed grade is a failed check
