@@ -4,6 +4,7 @@ kept when writing fails, and one ``OutputFileError`` for an unwritable place."""
 from __future__ import annotations
 
 import os
+import stat
 
 import pytest
 
@@ -55,3 +56,24 @@ def test_a_folder_in_the_way_is_one_output_file_error(tmp_path):
     with pytest.raises(OutputFileError, match="cannot write output"):
         write_atomically(str(target), "text")
     assert os.listdir(tmp_path) == ["report.txt"] and target.is_dir()
+
+
+posix_only = pytest.mark.skipif(os.name != "posix", reason="POSIX permission bits")
+
+
+@posix_only
+def test_a_new_report_gets_the_permissions_of_a_plain_open(tmp_path):
+    plain, atomic = tmp_path / "plain.txt", tmp_path / "atomic.txt"
+    with open(plain, "w", encoding="utf-8") as handle:  # what the umask gives (POSIX open(2), stdlib)
+        handle.write("x")
+    write_atomically(str(atomic), "x")
+    assert stat.S_IMODE(atomic.stat().st_mode) == stat.S_IMODE(plain.stat().st_mode)
+
+
+@posix_only
+def test_replacing_a_report_keeps_its_permissions(tmp_path):
+    target = tmp_path / "report.txt"
+    target.write_text("old", encoding="utf-8")
+    os.chmod(target, 0o640)
+    write_atomically(str(target), "new")
+    assert stat.S_IMODE(target.stat().st_mode) == 0o640 and target.read_text(encoding="utf-8") == "new"
