@@ -5,9 +5,21 @@ report is never left half-written.
 from __future__ import annotations
 
 import os
+import stat
 import tempfile
 
 from ..errors import OutputFileError
+
+
+def _report_mode(path: str) -> int:
+    """The permissions a plain ``open(path, "w")`` would leave: an existing file's own, else
+    0o666 less the umask (``mkstemp`` creates 0o600, unreadable to the group of a shared folder)."""
+    try:
+        return stat.S_IMODE(os.stat(path).st_mode)
+    except OSError:
+        mask = os.umask(0o022)  # the only portable way to read the umask is to set it
+        os.umask(mask)
+        return 0o666 & ~mask
 
 
 def write_atomically(path: str, text: str) -> None:
@@ -19,6 +31,7 @@ def write_atomically(path: str, text: str) -> None:
         raise OutputFileError(path, exc.strerror or str(exc)) from None
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
+            os.chmod(temporary, _report_mode(path))
             stream.write(text)
         os.replace(temporary, path)
     except BaseException as exc:
