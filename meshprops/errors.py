@@ -82,7 +82,7 @@ class InputValueError(MeshpropsError, ValueError):
 class InvalidMeshError(MeshpropsError, ValueError):
     """The mesh was read but failed validation; its numbers would not be sound.
 
-    ``findings`` holds the validation findings (see :mod:`meshprops.checks`).
+    ``findings`` holds the validation findings (see :mod:`meshprops.validation.findings`).
     """
 
     exit_code = EXIT_INVALID

@@ -2,7 +2,7 @@
 tensors, random rotations.
 
 Fixtures return plain functions so tests stay explicit about what they build.
-The meshes themselves come from :mod:`meshprops.shapes` (closed, outward).
+The meshes themselves come from :mod:`meshprops.geometry.shapes` (closed, outward).
 """
 
 from __future__ import annotations

@@ -57,7 +57,7 @@ class Mesh:
     def reference_point(self) -> np.ndarray:
         """A point near the part, in the file's unit: the mean corner of the first 1024 faces.
 
-        Integrating about it (see :func:`meshprops.moments.integrate_mesh`) keeps the
+        Integrating about it (see :func:`meshprops.physics.moments.integrate_mesh`) keeps the
         digits of a part placed far from the file's origin.
         """
         if self.face_count == 0:  # e.g. a mesh whose every face a repair dropped

@@ -37,7 +37,7 @@ class BodyMeasurement:
     source : file path (or a label for in-memory meshes)
     name : optional body name (assemblies)
     file_format, length_unit, face_count : as read
-    validation : findings of :func:`meshprops.checks.validate`
+    validation : findings of :func:`meshprops.validation.checks.validate`
     density : kg/m³; ``density_assumed`` true when the default was used
     properties : mass, volume, centre of mass, inertia about the centre of mass
     principal : principal moments and axes of the inertia about the centre of mass

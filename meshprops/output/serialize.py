@@ -162,7 +162,7 @@ CHECK_SCHEMA_VERSION = 1
 
 
 def check_to_dict(result) -> dict:
-    """One checked file (:class:`meshprops.checks.CheckResult`) as plain JSON data."""
+    """One checked file (:class:`meshprops.validation.checks.CheckResult`) as plain JSON data."""
     report = result.report
     return {
         "source": result.source,

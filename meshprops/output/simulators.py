@@ -1,6 +1,6 @@
 """Inertial blocks for robot and physics simulators: URDF, SDF and MJCF.
 
-Fed by the same body dictionaries as the JSON document (:mod:`meshprops.emit`,
+Fed by the same body dictionaries as the JSON document (:mod:`meshprops.output.serialize`,
 :mod:`meshprops.assembly_emit`), so the blocks can never disagree with it. All
 three formats take SI values (m, kg, kg·m²) and the inertia **tensor** entries
 about the centre of mass: ``ixy = I_xy = −∫ x y dm`` (minus the product of
@@ -129,7 +129,7 @@ def inertial_blocks(doc: dict, file_format: str, *, form: str = "full") -> Simul
 
     Parameters
     ----------
-    doc : a measurement document (:func:`meshprops.emit.document` or an assembly document)
+    doc : a measurement document (:func:`meshprops.output.serialize.document` or an assembly document)
     file_format : ``"urdf"``, ``"sdf"`` or ``"mjcf"``
     form : ``"full"`` (six tensor entries, axes of the frame) or ``"principal"``
         (principal moments plus the orientation of the principal axes)

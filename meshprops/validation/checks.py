@@ -529,7 +529,7 @@ def validate(mesh: Mesh, moments: Moments, *, thorough: bool = False) -> Validat
     mesh
         The mesh as read.
     moments
-        Its moments (signed total volume), from :func:`meshprops.moments.integrate_chunks`.
+        Its moments (signed total volume), from :func:`meshprops.physics.moments.integrate_chunks`.
     thorough
         ``False`` (inside ``measure``): the fast path; zero-area and duplicate faces
         are looked for only when the edge test fails (a closed, consistently
