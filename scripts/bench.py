@@ -6,7 +6,7 @@ and exits 0 whatever they are (no timed assertions anywhere).
 What it does, in one run:
 
 1. Makes closed, outward-oriented binary STL tori of about 1M and 5M triangles
-   (``meshprops.shapes.torus`` written with ``meshprops.writers.write_binary_stl``,
+   (``meshprops.geometry.shapes.torus`` written with ``meshprops.io.writers.write_binary_stl``,
    millimetres) in ``bench_data/`` (git-ignored), reusing them on later runs.
 2. End to end, each as a fresh process, alternating the two sides:
    ``meshprops measure FILE --json`` (start-up, load, validation, integration,
@@ -16,7 +16,7 @@ What it does, in one run:
    ``ru_maxrss`` from ``os.wait4``) in bytes per triangle.
 3. In this process: reading the file alone (memory map + touching every byte),
    loading it (``meshprops.io.load_mesh``), integrating it
-   (``meshprops.moments.integrate_chunks(mesh.triangle_chunks())``) and
+   (``meshprops.physics.moments.integrate_chunks(mesh.triangle_chunks())``) and
    validating it (``meshprops.validate``), with the integration/read ratio.
 
 Usage (from the repository root)::

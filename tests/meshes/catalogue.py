@@ -1,5 +1,5 @@
 """Broken (and a few sound) meshes for the validation and repair tests, built from
-:mod:`meshprops.shapes` boxes so that every expected number has a closed form.
+:mod:`meshprops.geometry.shapes` boxes so that every expected number has a closed form.
 
 Each :class:`Case` says what ``measure`` (fast checks) and ``check`` (every check)
 must find, at which faces, and what the mass properties are after ``--repair``.

@@ -2,7 +2,7 @@
 
 Two references for every faceted solid of revolution:
 
-1. *The exact polyhedron.* Each mesh from :mod:`meshprops.shapes` is a stack of regular
+1. *The exact polyhedron.* Each mesh from :mod:`meshprops.geometry.shapes` is a stack of regular
    n-gon sections with planar faces: at height z its cross-section is the region between
    two regular n-gons (circumradii ρ_in(z) ≤ ρ_out(z), both piecewise linear in z). A
    regular n-gon of circumradius ρ has area c_n ρ² with c_n = (n/2) sin(2π/n), polar second

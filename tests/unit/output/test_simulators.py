@@ -42,7 +42,7 @@ ROVER = ROOT / "sample_meshes" / "rover.toml"
 
 
 def rpy_matrix(roll, pitch, yaw):
-    """Written out here from elementary rotations, independent of meshprops.rotations."""
+    """Written out here from elementary rotations, independent of meshprops.physics.rotations."""
     cr, sr, cp, sp, cy, sy = math.cos(roll), math.sin(roll), math.cos(pitch), math.sin(pitch), math.cos(yaw), math.sin(yaw)
     rx = np.array([[1, 0, 0], [0, cr, -sr], [0, sr, cr]])
     ry = np.array([[cp, 0, sp], [0, 1, 0], [-sp, 0, cp]])

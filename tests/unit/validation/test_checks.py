@@ -1,4 +1,4 @@
-"""Validation (meshprops.checks): every finding of issue 4 on a fixture set of broken meshes,
+"""Validation (meshprops.validation.checks): every finding of issue 4 on a fixture set of broken meshes,
 at the exact faces; the building blocks (exact welding, edge test, union-find, winding
 numbers, triangle crossing) against independent references; the example folders and the
 ``meshprops check`` command with its exit codes (0 clean, 3 warnings only, 1 errors, 2 unreadable).

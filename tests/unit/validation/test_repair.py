@@ -1,4 +1,4 @@
-"""Safe repairs (meshprops.repair, ``measure --repair``): each broken fixture, once repaired,
+"""Safe repairs (meshprops.validation.repair, ``measure --repair``): each broken fixture, once repaired,
 gives the closed-form mass properties of the solid it was meant to be (box: m = rho a b c,
 I_xx = m (b^2 + c^2) / 12, handbook formula, common practice; parts combined with the
 parallel-axis theorem); what cannot be repaired safely stays an error."""
