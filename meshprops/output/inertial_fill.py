@@ -26,7 +26,7 @@ import numpy as np
 ROUND_OFF = 1e-12
 
 
-def _clean(value: float, scale: float) -> str:
+def clean_number(value: float, scale: float) -> str:
     """Shortest round-trip text of ``value``; 0 where it is round-off below ``ROUND_OFF * scale``."""
     value = float(value)
     if abs(value) <= ROUND_OFF * scale:
@@ -57,9 +57,9 @@ def _texts(inertial: NewInertial) -> tuple[str, list[str], dict[str, str]]:
     tensor = np.asarray(inertial.inertia_about_com, dtype=np.float64)
     length = max(float(np.max(np.abs(com))), float(inertial.length_scale))
     inertia_scale = float(np.max(np.abs(tensor)))
-    position = [_clean(v, length) for v in com]
+    position = [clean_number(v, length) for v in com]
     entries = {
-        key: _clean(tensor[i, j], inertia_scale)
+        key: clean_number(tensor[i, j], inertia_scale)
         for key, (i, j) in (("ixx", (0, 0)), ("ixy", (0, 1)), ("ixz", (0, 2)), ("iyy", (1, 1)), ("iyz", (1, 2)), ("izz", (2, 2)))
     }
     return repr(float(inertial.mass)), position, entries
