@@ -1,6 +1,6 @@
 """Inertials of a model's links computed from the model's own meshes.
 
-For every link of a URDF, SDFormat or MJCF model (:func:`meshprops.io.robot_model.load_robot_model`)
+For every link of a URDF, SDFormat or MJCF model (:func:`meshprops.measure.robot_model.load_robot_model`)
 with collision (else visual) meshes, each mesh is loaded, validated and integrated, scaled by
 the model's mesh scale and placed by the geometry's origin in the link frame
 (:func:`meshprops.physics.link_frame.in_link_frame`); several meshes of one link add up. The
@@ -23,17 +23,18 @@ from pathlib import Path
 
 import numpy as np
 
-from meshprops.errors import InputValueError, ManifestError, MeshFileError
-from meshprops.io import load_mesh
-from meshprops.io.robot_model import LinkInertial, MeshGeometry, ModelLink, RobotModel, load_robot_model
-from meshprops.materials import Material, find_material
-from meshprops.measure.body import DEFAULT_DENSITY, measure_mesh
-from meshprops.physics.link_frame import in_link_frame, with_mass
-from meshprops.physics.mass import MassProperties, check_density, combine
-from meshprops.physics.plausibility import check_plausibility
-from meshprops.physics.principal import principal_frame
-from meshprops.units import LENGTH_UNITS
-from meshprops.validation.findings import Finding
+from ..errors import InputValueError, ManifestError, MeshFileError, ModelFileError, UnitError
+from ..io import load_mesh
+from ..materials import Material, find_material
+from ..physics.link_frame import in_link_frame, with_mass
+from ..physics.mass import MassProperties, check_density, combine
+from ..physics.plausibility import check_plausibility
+from ..physics.principal import principal_frame
+from ..units import LENGTH_UNITS
+from ..validation.findings import Finding
+from .body import measure_mesh
+from .options import DEFAULT_DENSITY
+from .robot_model import LinkInertial, MeshGeometry, ModelLink, RobotModel, load_robot_model
 
 MAP_KEYS = frozenset({"material", "density", "measured_mass"})
 #: An old tensor within this of the identity matrix (kg·m², each entry) is the usual placeholder.
@@ -163,7 +164,7 @@ def _measure_geometry(geometry: MeshGeometry):
     unit = _unit_for(geometry.scale)
     mesh = load_mesh(geometry.path, unit or "m")
     scale = np.ones(3) if unit else geometry.scale
-    measurement = measure_mesh(mesh, 1.0, on_invalid="report")
+    measurement = measure_mesh(mesh, density=1.0, on_invalid="report")
     findings = tuple((str(geometry.path), finding) for finding in measurement.findings)
     if not measurement.valid:
         return None, None, findings
@@ -220,7 +221,7 @@ def fill_model(
 
     Raises
     ------
-    MeshFileError
+    ModelFileError
         The model or one of its meshes cannot be read (nothing is filled).
     ManifestError
         The map names a link the model does not have.
@@ -242,8 +243,8 @@ def fill_model(
         for geometry in link.meshes:
             try:
                 placed, corners, found = _measure_geometry(geometry)
-            except MeshFileError as error:
-                raise MeshFileError(str(model.path), f"link {link.name!r}: {error}", line=geometry.line) from None
+            except (MeshFileError, UnitError) as error:
+                raise ModelFileError(str(model.path), f"link {link.name!r}: {error}", line=geometry.line) from None
             findings.extend(found)
             if placed is None:
                 parts = None

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from meshprops.output.inertial_fill import NewInertial
+from .inertial_fill import NewInertial
 
 
 def _tensor(value) -> list[list[float]] | None:

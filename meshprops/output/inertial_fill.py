@@ -1,6 +1,6 @@
 """Write new inertials into a model's own bytes, changing nothing else.
 
-:func:`meshprops.io.robot_model.load_robot_model` records the byte span of each
+:func:`meshprops.measure.robot_model.load_robot_model` records the byte span of each
 link's inertial element (or, where a link has none, the offset just after the
 link's start tag). :func:`filled_model_bytes` replaces exactly those spans with
 new inertial elements in the model's own format and indentation; every other
@@ -22,17 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-#: Entries smaller than this fraction of their block's scale are round-off and print as 0.
-ROUND_OFF = 1e-12
-
-
-def clean_number(value: float, scale: float) -> str:
-    """Shortest round-trip text of ``value``; 0 where it is round-off below ``ROUND_OFF * scale``."""
-    value = float(value)
-    if abs(value) <= ROUND_OFF * scale:
-        return "0"
-    return repr(value)
-
+from .simulators import clean_number
 
 @dataclass(frozen=True, slots=True, eq=False)
 class NewInertial:
@@ -100,7 +90,7 @@ def filled_model_bytes(model, inertials: dict[int, NewInertial]) -> bytes:
 
     Parameters
     ----------
-    model : :class:`meshprops.io.robot_model.RobotModel`
+    model : :class:`meshprops.measure.robot_model.RobotModel`
     inertials : new inertials by index into ``model.links``; other links are left as they are
 
     Returns

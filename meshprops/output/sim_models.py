@@ -30,11 +30,10 @@ from pathlib import Path
 
 import numpy as np
 
-from meshprops.output.inertial_fill import clean_number
-from meshprops.output.simulators import FORMATS, FORMS, checked_block
-from meshprops.physics.rotations import quaternion_from_rotation, rpy_from_rotation
-from meshprops.units import metres_per
-from meshprops.version import __version__
+from ..physics.rotations import quaternion_from_rotation, rpy_from_rotation
+from ..units import metres_per
+from ..version import __version__
+from .simulators import FORMATS, FORMS, SIX_ENTRIES, checked_block, clean_number
 
 #: Mesh formats every client reads: others are copied to binary STL beside the model.
 PORTABLE_MESH_FORMATS = ("stl-binary", "obj")
@@ -93,7 +92,7 @@ def _angles(values) -> str:
     return " ".join(_number(v, 1.0) for v in values)
 
 
-def complete_model(doc: dict, file_format: str, output_path, *, form: str = "full") -> SimulatorModel:
+def complete_model(doc: dict, file_format: str, output_path, *, form: str = "full", copy_meshes: bool = True) -> SimulatorModel:
     """The complete model of an assembly document, to be written at ``output_path``.
 
     Parameters
@@ -102,6 +101,8 @@ def complete_model(doc: dict, file_format: str, output_path, *, form: str = "ful
     file_format : ``"urdf"``, ``"sdf"`` or ``"mjcf"``
     output_path : where the model will be written; mesh paths are relative to its folder
     form : ``"full"`` (six tensor entries) or ``"principal"`` (principal moments and orientation)
+    copy_meshes : refer to binary STL copies of PLY and ASCII STL meshes (listed in ``mesh_copies``);
+        ``False``: refer to the sources themselves
 
     Raises
     ------
@@ -132,7 +133,7 @@ def complete_model(doc: dict, file_format: str, output_path, *, form: str = "ful
             rotation = np.array(placement["rotation"], dtype=np.float64)
             translation = np.array(placement["translation"], dtype=np.float64)
             source = Path(body["source"]).resolve()
-            if mesh["format"] not in PORTABLE_MESH_FORMATS:
+            if copy_meshes and mesh["format"] not in PORTABLE_MESH_FORMATS:
                 target = folder / f"{output_path.stem}.{source.stem}.stl"
                 copies.setdefault(source, MeshCopy(source, target))
                 source = copies[source].target
@@ -182,7 +183,7 @@ def _inertial_frame(link: _Link, form: str) -> tuple[np.ndarray, np.ndarray]:
     return np.asarray(link.axes).T, np.diag(link.moments)
 
 
-_SIX = (("ixx", (0, 0)), ("ixy", (0, 1)), ("ixz", (0, 2)), ("iyy", (1, 1)), ("iyz", (1, 2)), ("izz", (2, 2)))
+_SIX = SIX_ENTRIES
 
 
 def _six(tensor) -> dict[str, str]:

@@ -17,12 +17,8 @@ from __future__ import annotations
 
 import numpy as np
 
-try:  # after the package restructuring
-    from meshprops.physics.mass import MassProperties
-except ImportError:  # pragma: no cover - the layout before it
-    from meshprops.mass import MassProperties
-
-from meshprops.errors import InputValueError
+from ..errors import InputValueError
+from .mass import MassProperties
 
 
 def scaled(properties: MassProperties, scale) -> MassProperties:

@@ -14,12 +14,8 @@ import numpy as np
 import pytest
 import trimesh
 
-try:
-    from meshprops.physics.mass import MassProperties
-    from meshprops.physics.rotations import rotation_from_rpy
-except ImportError:  # the layout before the restructuring
-    from meshprops.mass import MassProperties
-    from meshprops.rotations import rotation_from_rpy
+from meshprops.physics.mass import MassProperties
+from meshprops.physics.rotations import rotation_from_rpy
 
 from meshprops.errors import InputValueError
 from meshprops.physics.link_frame import in_link_frame, scaled, with_mass

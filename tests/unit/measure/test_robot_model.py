@@ -3,7 +3,7 @@
 Frame conventions checked here come from the formats' documentation (URDF link and
 joint specification; SDFormat link/collision/pose; MJCF geom, asset/mesh and
 compiler); the MJCF euler sequence is also checked against MuJoCo itself in
-tests/test_sim_clients.py when the ``sim`` extra is installed.
+tests/reference/test_sim_clients.py when the ``sim`` extra is installed.
 """
 
 from __future__ import annotations
@@ -15,13 +15,9 @@ import pytest
 import trimesh
 
 from meshprops.errors import MeshpropsError
-from meshprops.io.robot_model import load_robot_model
+from meshprops.measure.robot_model import load_robot_model
 from meshprops.output.inertial_fill import NewInertial, filled_model_bytes
-
-try:
-    from meshprops.physics.rotations import rotation_from_quaternion, rotation_from_rpy
-except ImportError:  # the layout before the restructuring
-    from meshprops.rotations import rotation_from_quaternion, rotation_from_rpy
+from meshprops.physics.rotations import rotation_from_quaternion, rotation_from_rpy
 
 
 URDF = """<?xml version="1.0"?>

@@ -25,7 +25,7 @@ import pytest
 mujoco = pytest.importorskip("mujoco", reason="the sim extra is not installed (pip install '.[sim]')")
 pinocchio = pytest.importorskip("pinocchio", reason="the sim extra is not installed (pip install '.[sim]')")
 
-ROVER = Path(__file__).resolve().parents[1] / "sample_meshes" / "rover.toml"
+ROVER = Path(__file__).resolve().parents[2] / "sample_meshes" / "rover.toml"
 TOLERANCE = 1e-9
 
 

@@ -23,14 +23,10 @@ import sys
 import numpy as np
 import pytest
 
-from meshprops import shapes
-from meshprops.io.robot_model import load_robot_model
+from meshprops.geometry import shapes
+from meshprops.io.writers import write_binary_stl, write_obj
 from meshprops.materials import find_material
-
-try:
-    from meshprops.io.writers import write_binary_stl, write_obj
-except ImportError:  # the layout before the restructuring
-    from meshprops.writers import write_binary_stl, write_obj
+from meshprops.measure.robot_model import load_robot_model
 
 BASE_SIDES = np.array([80.0, 50.0, 20.0])  # mm
 BASE_CENTRE = np.array([10.0, 5.0, 2.0])  # mm, in the mesh file

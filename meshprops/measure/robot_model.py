@@ -48,20 +48,9 @@ from urllib.parse import unquote, urlparse
 
 import numpy as np
 
-from meshprops.errors import MeshFileError
-
-try:  # after the package restructuring
-    from meshprops.physics.mass import rotate_tensor
-    from meshprops.physics.rotations import (
-        rotation_from_axis_angle,
-        rotation_from_quaternion,
-        rotation_from_rpy,
-    )
-except ImportError:  # pragma: no cover - the layout before it
-    from meshprops.mass import rotate_tensor
-    from meshprops.rotations import rotation_from_axis_angle, rotation_from_quaternion, rotation_from_rpy
-
-ModelFileError = MeshFileError
+from ..errors import ModelFileError
+from ..physics.mass import rotate_tensor
+from ..physics.rotations import rotation_from_axis_angle, rotation_from_quaternion, rotation_from_rpy
 
 MODEL_FORMATS = ("urdf", "sdf", "mjcf")
 #: Mesh file formats meshprops reads.
