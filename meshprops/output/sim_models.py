@@ -30,6 +30,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..errors import InputValueError
 from ..physics.rotations import quaternion_from_rotation, rpy_from_rotation
 from ..units import metres_per
 from ..version import __version__
@@ -112,9 +113,9 @@ def complete_model(doc: dict, file_format: str, output_path, *, form: str = "ful
         the body's extent.
     """
     if file_format not in FORMATS:
-        raise ValueError(f"model format: expected one of {', '.join(FORMATS)}, got {file_format!r}")
+        raise InputValueError("simulator format", f"one of {', '.join(FORMATS)}", file_format)
     if form not in FORMS:
-        raise ValueError(f"inertial form: expected one of {', '.join(FORMS)}, got {form!r}")
+        raise InputValueError("--inertial-form", f"one of {', '.join(FORMS)}", form)
     output_path = Path(output_path)
     folder = output_path.resolve().parent
     taken = {str(body.get("name")) for body in doc["bodies"]}
