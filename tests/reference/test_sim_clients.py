@@ -120,3 +120,63 @@ def test_mesh_copies_are_binary_stl_beside_the_model(models):
     for name in copies:
         data = (folder / name).read_bytes()
         assert len(data) == 84 + 50 * int.from_bytes(data[80:84], "little")  # binary STL layout (common practice)
+
+
+def test_mujoco_reads_a_filled_mjcf_model_as_the_closed_form(tmp_path):
+    """Fill an MJCF body whose mesh geom is turned and offset; MuJoCo's compiled body inertia must be
+    the handbook cuboid (m = ρ a b c, I = m (b² + c²)/12, ...) carried by the geom's pos and quat."""
+    from meshprops.geometry import shapes
+    from meshprops.io.writers import write_binary_stl
+    from meshprops.physics.rotations import rotation_from_quaternion
+
+    sides = np.array([60.0, 30.0, 10.0])  # mm
+    vertices, faces = shapes.box(sides, center=(5.0, 0.0, 0.0))
+    write_binary_stl(tmp_path / "plate.stl", np.asarray(vertices)[np.asarray(faces)])
+    quat = np.array([0.9, 0.1, -0.3, 0.2]) / np.linalg.norm([0.9, 0.1, -0.3, 0.2])
+    model = tmp_path / "plate.xml"
+    model.write_text(
+        '<mujoco model="plate">\n  <!-- kept -->\n  <asset><mesh name="plate" file="plate.stl" scale="0.001 0.001 0.001"/></asset>\n'
+        '  <worldbody>\n    <body name="plate" pos="0 0 0.2">\n      <freejoint/>\n'
+        '      <inertial pos="0 0 0" mass="1" diaginertia="1 1 1"/>\n'
+        f'      <geom type="mesh" mesh="plate" pos="0.01 0.02 -0.03" quat="{" ".join(repr(float(q)) for q in quat)}"/>\n'
+        "    </body>\n  </worldbody>\n</mujoco>\n"
+    )
+    out = tmp_path / "filled.xml"
+    result = run_meshprops("fill-inertials", str(model), "-o", str(out), "--density", "7850")
+    assert result.returncode == 0, result.stderr
+    compiled = mujoco.MjModel.from_xml_path(str(out))
+    a, b, c = sides * 0.001
+    mass = 7850.0 * a * b * c
+    rotation = rotation_from_quaternion(quat)
+    expected_com = rotation @ np.array([0.005, 0.0, 0.0]) + [0.01, 0.02, -0.03]
+    expected = rotation @ (mass / 12.0 * np.diag([b * b + c * c, a * a + c * c, a * a + b * b])) @ rotation.T
+    assert abs(compiled.body_mass[1] - mass) <= 1e-12 * mass
+    np.testing.assert_allclose(compiled.body_ipos[1], expected_com, rtol=0, atol=1e-12)
+    # MuJoCo stores the inertia as principal moments (body_inertia) in the frame body_iquat.
+    frame = rotation_from_quaternion(compiled.body_iquat[1])
+    got = frame @ np.diag(compiled.body_inertia[1]) @ frame.T
+    np.testing.assert_allclose(got, expected, rtol=0, atol=1e-9 * np.abs(expected).max())
+
+
+def test_pinocchio_reads_a_filled_urdf_inertial_as_written(tmp_path):
+    """The URDF the fill test writes, read back by Pinocchio: its link inertia equals the file's."""
+    from meshprops.geometry import shapes
+    from meshprops.io.writers import write_binary_stl
+    from meshprops.measure.robot_model import load_robot_model
+
+    vertices, faces = shapes.box((40.0, 20.0, 10.0), center=(3.0, 2.0, 1.0))
+    write_binary_stl(tmp_path / "part.stl", np.asarray(vertices)[np.asarray(faces)])
+    model = tmp_path / "part.urdf"
+    model.write_text(
+        '<robot name="r">\n  <link name="part">\n    <collision>\n      <origin xyz="0.1 0 0" rpy="0.2 0.4 -0.6"/>\n'
+        '      <geometry><mesh filename="part.stl" scale="0.001 0.001 0.001"/></geometry>\n    </collision>\n'
+        "  </link>\n</robot>\n"
+    )
+    out = tmp_path / "filled.urdf"
+    result = run_meshprops("fill-inertials", str(model), "-o", str(out), "--density", "2700")
+    assert result.returncode == 0, result.stderr
+    written = load_robot_model(out).links[0].inertial
+    read = pinocchio.buildModelFromUrdf(str(out), pinocchio.JointModelFreeFlyer()).inertias[1]
+    assert abs(read.mass - written.mass) <= 1e-12 * written.mass
+    np.testing.assert_allclose(read.lever, written.center_of_mass, rtol=0, atol=1e-15)
+    np.testing.assert_allclose(read.inertia, written.inertia_about_com, rtol=0, atol=1e-12 * np.abs(written.inertia_about_com).max())
