@@ -13,7 +13,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
+from ..errors import EXIT_INVALID, EXIT_OK, InputValueError, ModelFileError
 from .app import app, one_line_errors, say, write_report
 
 
@@ -39,7 +39,7 @@ def fill_inertials(
     from ..output.inertial_fill import filled_model_bytes
 
     if not model.is_file():
-        raise InputValueError("MODEL", "an existing model file", str(model))
+        raise ModelFileError(str(model), "no such file")
     if _same_file(model, output):
         raise InputValueError("--output", "a file other than MODEL (the input is never overwritten)", str(output))
     if density is not None and material is not None:
