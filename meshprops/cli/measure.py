@@ -29,7 +29,7 @@ def measure(
     axis: Annotated[Optional[str], typer.Option("--axis", help="Spin axis AX,AY,AZ for --rpm (normalized).")] = None,
     velocity: Annotated[Optional[str], typer.Option("--velocity", help="Velocity VX,VY,VZ of the centre of mass in m/s (with --spin and --about: orbital angular momentum).")] = None,
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document (SI) instead of a table.")] = False,
-    output_format: Annotated[Optional[str], typer.Option("--format", "-f", help="Output: table, json, urdf, sdf, mjcf (inertial blocks) or csv (assembly breakdown).")] = None,
+    output_format: Annotated[Optional[str], typer.Option("--format", "-f", help="Output: table, json, urdf, sdf, mjcf (a manifest: a complete model; mesh files: inertial blocks) or csv (assembly breakdown).")] = None,
     inertial_form: Annotated[str, typer.Option("--inertial-form", help="Simulator blocks: full (six tensor entries) or principal (principal moments plus orientation).")] = "full",
     blocks_only: Annotated[bool, typer.Option("--blocks-only", help="With --format urdf|sdf|mjcf and a manifest: only the inertial blocks, not a complete model.")] = False,
     overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,

@@ -52,6 +52,7 @@ def fill_to_dict(fill) -> dict:
             "findings": [{"file": source, "code": finding.code, "severity": finding.severity, "message": finding.message}
                          for source, finding in item.findings],  # fmt: skip
             "size": item.size,
+            "ignored_geometry": item.link.ignored_geometry,
         })  # fmt: skip
     return {"model": str(fill.model.path), "format": fill.model.format, "valid": fill.valid, "links": links}
 
@@ -85,6 +86,11 @@ def fill_table(report: dict) -> str:
             link["name"], status, _g(old and old["mass"]), _g(new and new["mass"]), _g(link["mass_ratio"]),
             diagonal(old), diagonal(new), _g(link["inertia_trace_ratio"]),
         ))  # fmt: skip
+        if link["status"] == "filled" and link["ignored_geometry"]:
+            notes.append(
+                f"{link['name']}: {link['ignored_geometry']} {link['mesh_element']} geometry that is not a mesh "
+                "(box, cylinder, ...) is not counted in the new inertial"
+            )
         if link["placeholder"]:
             notes.append(f"{link['name']}: old inertial was a placeholder ({link['placeholder']})")
         if link["status"] == "filled" and link["density_basis"] == "assumed":

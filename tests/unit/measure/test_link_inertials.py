@@ -84,3 +84,14 @@ def test_bad_maps_name_the_key(tmp_path, text, key):
     with pytest.raises(ManifestError) as raised:
         load_link_map(tmp_path / "map.toml")
     assert raised.value.key == key
+
+
+def test_geometry_that_is_not_a_mesh_is_said_to_be_left_out(tmp_path):
+    from meshprops.output.fill_report import fill_table, fill_to_dict
+
+    path = model_with(tmp_path, "")
+    text = path.read_text().replace("</link>", '<collision><geometry><box size="0.1 0.1 0.1"/></geometry></collision></link>')
+    path.write_text(text)
+    fill = fill_model(path, density=1000.0)
+    assert fill.links[0].link.ignored_geometry == 1
+    assert "part: 1 collision geometry that is not a mesh (box, cylinder, ...) is not counted" in fill_table(fill_to_dict(fill))
