@@ -35,7 +35,7 @@ def run_meshprops(*arguments) -> subprocess.CompletedProcess:
 
 @pytest.fixture(scope="module")
 def rover_total():
-    result = run_meshprops("measure", str(ROVER), "--json")
+    result = run_meshprops("measure", str(ROVER), "--json", "--overlap-samples", "0")
     assert result.returncode == 0, result.stderr
     total = json.loads(result.stdout)["total"]
     return total["mass"], np.array(total["center_of_mass"]), np.array(total["inertia_about_com"])
@@ -48,7 +48,7 @@ def models(tmp_path_factory):
     for file_format in ("urdf", "sdf", "mjcf"):
         for form in ("full", "principal"):
             out = folder / f"rover_{form}.{'xml' if file_format == 'mjcf' else file_format}"
-            result = run_meshprops("measure", str(ROVER), "--format", file_format, "--inertial-form", form, "-o", str(out))
+            result = run_meshprops("measure", str(ROVER), "--format", file_format, "--inertial-form", form, "-o", str(out), "--overlap-samples", "0")
             assert result.returncode == 0, result.stderr
             written[file_format, form] = out
     return written
@@ -180,3 +180,33 @@ def test_pinocchio_reads_a_filled_urdf_inertial_as_written(tmp_path):
     assert abs(read.mass - written.mass) <= 1e-12 * written.mass
     np.testing.assert_allclose(read.lever, written.center_of_mass, rtol=0, atol=1e-15)
     np.testing.assert_allclose(read.inertia, written.inertia_about_com, rtol=0, atol=1e-12 * np.abs(written.inertia_about_com).max())
+
+
+def test_the_reader_agrees_with_the_clients_on_rotated_inertials(tmp_path):
+    """An old inertial given in a rotated frame (URDF origin rpy; MJCF diaginertia + quat, euler) is read into
+    link axes as Pinocchio and MuJoCo read it (placeholder detection and the report depend on it)."""
+    from meshprops.measure.robot_model import load_robot_model
+    from meshprops.physics.rotations import rotation_from_quaternion
+
+    urdf = tmp_path / "r.urdf"
+    urdf.write_text(
+        '<robot name="r"><link name="a"><inertial><origin xyz="0.1 -0.2 0.3" rpy="0.3 -0.7 1.9"/><mass value="2"/>'
+        '<inertia ixx="0.02" ixy="0.001" ixz="-0.002" iyy="0.03" iyz="0.0015" izz="0.04"/></inertial></link></robot>'
+    )
+    mine = load_robot_model(urdf).links[0].inertial
+    theirs = pinocchio.buildModelFromUrdf(str(urdf), pinocchio.JointModelFreeFlyer()).inertias[1]
+    np.testing.assert_allclose(theirs.lever, mine.center_of_mass, atol=1e-15)
+    np.testing.assert_allclose(theirs.inertia, mine.inertia_about_com, atol=1e-15)
+
+    for orientation in ('quat="0.8 0.2 -0.4 0.1"', 'euler="20 -35 70"', 'axisangle="1 2 -1 50"'):
+        mjcf = tmp_path / "m.xml"
+        mjcf.write_text(
+            '<mujoco><worldbody><body name="a"><freejoint/>'
+            f'<inertial pos="0.1 0.2 0.3" mass="2" diaginertia="0.02 0.03 0.04" {orientation}/>'
+            "</body></worldbody></mujoco>"
+        )
+        mine = load_robot_model(mjcf).links[0].inertial
+        compiled = mujoco.MjModel.from_xml_path(str(mjcf))
+        frame = rotation_from_quaternion(compiled.body_iquat[1])
+        np.testing.assert_allclose(frame @ np.diag(compiled.body_inertia[1]) @ frame.T, mine.inertia_about_com, atol=1e-12)
+        np.testing.assert_allclose(compiled.body_ipos[1], mine.center_of_mass, atol=1e-15)
