@@ -211,3 +211,43 @@ def test_an_unknown_link_in_the_map_is_an_error(model, tmp_path):
     result = fill(model, "-o", tmp_path / "out.urdf", "--map", tmp_path / "map.toml")
     assert result.returncode == 2 and "link.elbow" in result.stderr
     assert not (tmp_path / "out.urdf").exists()
+
+
+SDF_MODEL = f"""<?xml version="1.0"?>
+<sdf version="1.9">
+  <model name="test_arm">  <!-- the same arm in SDFormat -->
+    <link name="base">
+      <collision name="base_collision">
+        <pose>{' '.join(map(repr, BASE_ORIGIN[0]))} {' '.join(map(repr, BASE_ORIGIN[1]))}</pose>
+        <geometry><mesh><uri>meshes/base.stl</uri><scale>0.001 0.001 0.001</scale></mesh></geometry>
+      </collision>
+    </link>
+    <link name="arm">
+      <pose>0 0 0.04 0 0 0.25</pose>
+      <inertial><mass>1</mass></inertial>
+      <collision name="arm_collision">
+        <pose degrees="true">0 0 0.05 0 90 0</pose>
+        <geometry><mesh><uri>meshes/arm.obj</uri><scale>0.001 0.001 0.001</scale></mesh></geometry>
+      </collision>
+    </link>
+    <joint name="shoulder" type="revolute"><parent>base</parent><child>arm</child><axis><xyz>0 0 1</xyz></axis></joint>
+  </model>
+</sdf>
+"""
+
+
+def test_sdformat_model_filled_with_closed_forms(tmp_path):
+    write_meshes(tmp_path)
+    path = tmp_path / "arm.sdf"
+    path.write_text(SDF_MODEL)
+    out = tmp_path / "filled.sdf"
+    result = fill(path, "-o", out, "--density", 2700)
+    assert result.returncode == 0, result.stderr
+    base, arm = load_robot_model(out).links
+    assert_inertial(base.inertial, expected_base(2700.0))  # a link without an inertial gets one
+    assert_inertial(arm.inertial, expected_arm(2700.0))  # the default inertial (mass 1, identity) is replaced
+    assert "identity inertia matrix" in result.stdout
+    assert without_inertials(out) == without_inertials(path)
+    again = tmp_path / "again.sdf"
+    assert fill(out, "-o", again, "--density", 2700).returncode == 0
+    assert again.read_bytes() == out.read_bytes()
