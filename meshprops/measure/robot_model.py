@@ -25,7 +25,8 @@ SDFormat (``link`` element)
     is missing are mass 1 and ``ixx = iyy = izz = 1`` (from memory).
 MJCF (``body`` element)
     ``geom`` with ``type="mesh"`` (collision unless both ``contype`` and
-    ``conaffinity`` are 0) and ``pos`` plus one of ``quat`` (``w x y z``, scalar
+    ``conaffinity`` are 0; default classes applied: the geom's ``class``, else the
+    nearest body's ``childclass``, else ``main``) and ``pos`` plus one of ``quat`` (``w x y z``, scalar
     first), ``axisangle``, ``euler`` (sequence ``compiler/eulerseq``, angles in
     ``compiler/angle``, degrees by default); ``asset/mesh`` gives the file
     (under ``compiler/meshdir`` or ``assetdir``) and ``scale``. MuJoCo keeps the
@@ -508,14 +509,15 @@ def _mjcf_compiler(root: _Node, folder: Path, source: str) -> _Compiler:
     return _Compiler(degrees, sequence, mesh_folder)
 
 
-def _mjcf_rotation(node: _Node, compiler: _Compiler, source: str) -> np.ndarray:
-    given = [key for key in _ORIENTATIONS if key in node.attributes]
+def _mjcf_rotation(attributes: dict, node: _Node, compiler: _Compiler, source: str) -> np.ndarray:
+    """The rotation an element's orientation attributes (``attributes``, defaults applied) give."""
+    given = [key for key in _ORIENTATIONS if key in attributes]
     if len(given) > 1:
         raise ModelFileError(source, f"<{node.tag}>: more than one orientation ({', '.join(given)})", line=node.line)
     if not given:
         return np.eye(3)
     key = given[0]
-    text = node.attributes[key]
+    text = attributes[key]
     if key == "quat":
         quaternion = _numbers(text, 4, "quat", source, node.line)
         if not np.linalg.norm(quaternion) > 0:
@@ -539,34 +541,72 @@ def _mjcf_rotation(node: _Node, compiler: _Compiler, source: str) -> np.ndarray:
     raise ModelFileError(source, f"<{node.tag}>: orientation '{key}' is not followed; use quat, axisangle or euler", line=node.line)
 
 
-def _mjcf_check_defaults(root: _Node, source: str) -> None:
-    for default in root.iterate("default"):
-        for geom in default.find_all("geom"):
-            moved = [key for key in ("pos", *_ORIENTATIONS, "type", "mesh", "fromto") if key in geom.attributes]
-            if moved:
-                raise ModelFileError(
-                    source, f"<default> sets geom {', '.join(moved)}: default classes are not followed; write them on each geom",
-                    line=geom.line,
-                )  # fmt: skip
-        for mesh in default.find_all("mesh"):
-            if "scale" in mesh.attributes:
-                raise ModelFileError(source, "<default> sets mesh scale: default classes are not followed", line=mesh.line)
+def _mjcf_defaults(root: _Node, source: str) -> dict[str, tuple[str | None, dict[str, dict]]]:
+    """Default classes: ``class -> (parent class, {element tag: attributes})``; the top one is ``"main"``."""
+    classes: dict[str, tuple[str | None, dict[str, dict]]] = {}
+
+    def visit(node: _Node, parent: str | None) -> None:
+        name = node.attributes.get("class", "main" if parent is None else None)
+        if name is None:
+            raise ModelFileError(source, "a nested <default> without a class", line=node.line)
+        classes[name] = (parent, {child.tag: child.attributes for child in node.children if child.tag != "default"})
+        for child in node.find_all("default"):
+            visit(child, name)
+
+    for default in root.find_all("default"):
+        visit(default, None)
+    return classes
+
+
+def _with_defaults(node: _Node, classes, class_name: str, source: str) -> dict:
+    """``node``'s attributes over those its default class chain gives its element (MuJoCo's inheritance)."""
+    chain = []
+    name: str | None = class_name
+    while name is not None:
+        if name not in classes:
+            if name == "main":
+                break
+            raise ModelFileError(source, f"<{node.tag}> class {name!r} is not a default class", line=node.line)
+        chain.append(name)
+        name = classes[name][0]
+    merged: dict = {}
+    for name in reversed(chain):
+        merged.update(classes[name][1].get(node.tag, {}))
+    if any(key in node.attributes for key in _ORIENTATIONS):  # an orientation on the element replaces the default's
+        merged = {key: value for key, value in merged.items() if key not in _ORIENTATIONS}
+    merged.update(node.attributes)
+    return merged
+
+
+def _geom_class(geom: _Node) -> str:
+    """The class a geom takes: its own, else the nearest enclosing body's ``childclass``, else ``main``."""
+    if "class" in geom.attributes:
+        return geom.attributes["class"]
+    node = geom.parent
+    while node is not None:
+        if node.tag == "body" and "childclass" in node.attributes:
+            return node.attributes["childclass"]
+        node = node.parent
+    return "main"
 
 
 def _mjcf_links(root: _Node, data: bytes, folder: Path, source: str):
     compiler = _mjcf_compiler(root, folder, source)
-    _mjcf_check_defaults(root, source)
+    for include in root.iterate("include"):
+        raise ModelFileError(source, "<include> is not followed: fill the included file on its own", line=include.line)
+    classes = _mjcf_defaults(root, source)
     assets = {}
     for asset in root.iterate("asset"):
         for mesh in asset.find_all("mesh"):
-            file_name = mesh.attributes.get("file")
+            attributes = _with_defaults(mesh, classes, mesh.attributes.get("class", "main"), source)
+            file_name = attributes.get("file")
             if not file_name:
                 raise ModelFileError(source, "<mesh> without a file (vertex lists are not followed)", line=mesh.line)
-            name = mesh.attributes.get("name") or Path(file_name).stem
+            name = attributes.get("name") or Path(file_name).stem
             for key in ("refpos", "refquat"):
-                if key in mesh.attributes:
+                if key in attributes:
                     raise ModelFileError(source, f"mesh {name!r}: {key} is not followed", line=mesh.line)
-            scale = _numbers(mesh.attributes.get("scale"), 3, "mesh scale", source, mesh.line, default=(1, 1, 1))
+            scale = _numbers(attributes.get("scale"), 3, "mesh scale", source, mesh.line, default=(1, 1, 1))
             assets[name] = (file_name, scale, mesh.line)
     worldbody = root.find("worldbody")
     if worldbody is None:
@@ -576,21 +616,24 @@ def _mjcf_links(root: _Node, data: bytes, folder: Path, source: str):
         candidates = {"collision": [], "visual": []}
         ignored = {"collision": 0, "visual": 0}
         for geom in body.find_all("geom"):
-            element = "visual" if geom.attributes.get("contype") == "0" and geom.attributes.get("conaffinity") == "0" else "collision"
-            geom_type = geom.attributes.get("type", "mesh" if "mesh" in geom.attributes else "sphere")
+            attributes = _with_defaults(geom, classes, _geom_class(geom), source)
+            element = "visual" if attributes.get("contype") == "0" and attributes.get("conaffinity") == "0" else "collision"
+            geom_type = attributes.get("type", "mesh" if "mesh" in attributes else "sphere")
             if geom_type != "mesh":
                 ignored[element] += 1
                 continue
-            mesh_name = geom.attributes.get("mesh")
+            mesh_name = attributes.get("mesh")
             if mesh_name not in assets:
                 raise ModelFileError(source, f"body {name!r}: geom mesh {mesh_name!r} is not an asset mesh", line=geom.line)
             file_name, scale, _ = assets[mesh_name]
-            translation = _numbers(geom.attributes.get("pos"), 3, "geom pos", source, geom.line, default=(0, 0, 0))
+            if "fromto" in attributes:
+                raise ModelFileError(source, f"body {name!r}: a mesh geom placed by fromto is not followed", line=geom.line)
+            translation = _numbers(attributes.get("pos"), 3, "geom pos", source, geom.line, default=(0, 0, 0))
             path = Path(file_name) if Path(file_name).is_absolute() else compiler.mesh_folder / file_name
             if not path.is_file():
                 raise ModelFileError(source, f"mesh {file_name!r} not found (looked for {path})", line=geom.line)
             candidates[element].append(
-                MeshGeometry(file_name, path, element, _mjcf_rotation(geom, compiler, source), translation, scale, geom.line)
+                MeshGeometry(file_name, path, element, _mjcf_rotation(attributes, geom, compiler, source), translation, scale, geom.line)
             )
         meshes, skipped = _pick_meshes(candidates, ignored)
         inertial_node = body.find("inertial")
@@ -609,4 +652,4 @@ def _mjcf_inertial(node: _Node, compiler: _Compiler, body: str, source: str) -> 
         tensor = np.diag(_numbers(attributes["diaginertia"], 3, "diaginertia", source, node.line))
     else:
         raise ModelFileError(source, f"body {body!r}: <inertial> without diaginertia or fullinertia", line=node.line)
-    return LinkInertial(mass, com, rotate_tensor(tensor, _mjcf_rotation(node, compiler, source)))
+    return LinkInertial(mass, com, rotate_tensor(tensor, _mjcf_rotation(attributes, node, compiler, source)))

@@ -210,3 +210,53 @@ def test_the_reader_agrees_with_the_clients_on_rotated_inertials(tmp_path):
         frame = rotation_from_quaternion(compiled.body_iquat[1])
         np.testing.assert_allclose(frame @ np.diag(compiled.body_inertia[1]) @ frame.T, mine.inertia_about_com, atol=1e-12)
         np.testing.assert_allclose(compiled.body_ipos[1], mine.center_of_mass, atol=1e-15)
+
+
+def test_fill_of_an_mjcf_with_default_classes_matches_mujocos_own_mesh_inertia(tmp_path):
+    """MuJoCo computes a body's inertia from its mesh geoms (``inertiafromgeom="true"``, mesh
+    ``inertia="exact"``: the polyhedron's exact volume integrals); meshprops' fill of the same model,
+    default classes applied (childclass, a visual class left out by contype/conaffinity 0 and by
+    ``inertiagrouprange``), must give the same mass, centre of mass and inertia."""
+    from meshprops.geometry import shapes
+    from meshprops.io.writers import write_binary_stl, write_obj
+    from meshprops.measure.robot_model import load_robot_model
+    from meshprops.physics.rotations import rotation_from_quaternion
+
+    vertices, faces = shapes.box((80.0, 50.0, 20.0), center=(10.0, 5.0, 2.0))
+    write_binary_stl(tmp_path / "base.stl", np.asarray(vertices)[np.asarray(faces)])
+    write_obj(tmp_path / "arm.obj", *shapes.hollow_box((120.0, 30.0, 30.0), (100.0, 20.0, 20.0), (60.0, 0.0, 0.0)))
+    model = tmp_path / "arm.xml"
+    model.write_text("""<mujoco model="arm">
+  <compiler angle="degree" inertiafromgeom="true" inertiagrouprange="0 1"/>
+  <default>
+    <mesh scale="0.001 0.001 0.001" inertia="exact"/>
+    <default class="part">
+      <geom type="mesh" density="2700" group="0" quat="0.9 0.1 -0.3 0.2"/>
+      <default class="visual"><geom contype="0" conaffinity="0" group="2"/></default>
+    </default>
+  </default>
+  <asset><mesh file="base.stl"/><mesh file="arm.obj"/></asset>
+  <worldbody>
+    <body name="base" childclass="part" pos="0 0 0.1">
+      <geom mesh="base" pos="0.01 -0.02 0.03"/>
+      <geom mesh="arm" class="visual"/>
+      <body name="arm" pos="0 0 0.04">
+        <joint type="hinge" axis="0 0 1"/>
+        <geom mesh="arm" pos="0 0 0.05" euler="0 90 0"/>
+      </body>
+    </body>
+  </worldbody>
+</mujoco>
+""")
+    out = tmp_path / "filled.xml"
+    result = run_meshprops("fill-inertials", str(model), "-o", str(out), "--density", "2700")
+    assert result.returncode == 0, result.stderr
+    compiled = mujoco.MjModel.from_xml_path(str(model))
+    for index, link in enumerate(load_robot_model(out).links, start=1):
+        assert link.meshes and all(mesh.element == "collision" for mesh in link.meshes)
+        mine = link.inertial
+        assert abs(compiled.body_mass[index] - mine.mass) <= 1e-9 * mine.mass
+        np.testing.assert_allclose(compiled.body_ipos[index], mine.center_of_mass, rtol=0, atol=1e-12)
+        frame = rotation_from_quaternion(compiled.body_iquat[index])
+        theirs = frame @ np.diag(compiled.body_inertia[index]) @ frame.T
+        np.testing.assert_allclose(theirs, mine.inertia_about_com, rtol=0, atol=1e-9 * np.abs(theirs).max())
