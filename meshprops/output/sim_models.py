@@ -67,6 +67,7 @@ class _Link:
     axes: np.ndarray  # principal axes as rows, link axes
     rotation: np.ndarray  # link frame in the root frame
     translation: np.ndarray
+    joint_name: str  # of the fixed joint to the root, unique among every link and joint name
     mesh_reference: str | None  # path relative to the model's folder, "/" separated
     mesh_scale: float
     length_scale: float  # m, for round-off
@@ -120,6 +121,7 @@ def complete_model(doc: dict, file_format: str, output_path, *, form: str = "ful
     folder = output_path.resolve().parent
     taken = {str(body.get("name")) for body in doc["bodies"]}
     root_name = _unique_name("assembly_root", taken)
+    taken.add(root_name)
     links: list[_Link] = []
     copies: dict[Path, MeshCopy] = {}
     warnings: list[str] = []
@@ -145,7 +147,9 @@ def complete_model(doc: dict, file_format: str, output_path, *, form: str = "ful
             com = np.zeros(3)
             reference, scale = None, 1.0
         length = float(np.max(np.abs(translation))) if np.any(translation) else 0.0
-        links.append(_Link(label, mass, np.asarray(com), tensor, moments, axes, rotation, translation,
+        joint_name = _unique_name(f"{label}_fixed", taken)  # SDFormat: one namespace for links and joints
+        taken.add(joint_name)
+        links.append(_Link(label, mass, np.asarray(com), tensor, moments, axes, rotation, translation, joint_name,
                            reference, scale, max(length, float(np.max(np.abs(com))))))  # fmt: skip
     name = (doc.get("assembly") or {}).get("name") or "meshprops_assembly"
     writer = {"urdf": _urdf, "sdf": _sdf, "mjcf": _mjcf}[file_format]
@@ -210,7 +214,7 @@ def _urdf(name: str, root_name: str, links: list[_Link], form: str) -> ET.Elemen
                 ET.SubElement(holder, "origin", {"xyz": "0 0 0", "rpy": "0 0 0"})
                 geometry = ET.SubElement(holder, "geometry")
                 ET.SubElement(geometry, "mesh", {"filename": link.mesh_reference, "scale": _vector([link.mesh_scale] * 3, 0)})
-        joint = ET.SubElement(robot, "joint", {"name": f"{link.name}_fixed", "type": "fixed"})
+        joint = ET.SubElement(robot, "joint", {"name": link.joint_name, "type": "fixed"})
         ET.SubElement(joint, "parent", {"link": root_name})
         ET.SubElement(joint, "child", {"link": link.name})
         ET.SubElement(joint, "origin", {
@@ -248,7 +252,7 @@ def _sdf(name: str, root_name: str, links: list[_Link], form: str) -> ET.Element
                 mesh = ET.SubElement(ET.SubElement(holder, "geometry"), "mesh")
                 ET.SubElement(mesh, "uri").text = link.mesh_reference
                 ET.SubElement(mesh, "scale").text = _vector([link.mesh_scale] * 3, 0)
-        joint = ET.SubElement(model, "joint", {"name": f"{link.name}_fixed", "type": "fixed"})
+        joint = ET.SubElement(model, "joint", {"name": link.joint_name, "type": "fixed"})
         ET.SubElement(joint, "parent").text = root_name
         ET.SubElement(joint, "child").text = link.name
     return sdf
