@@ -129,3 +129,15 @@ class SimulatorExportError(MeshpropsError, ValueError):
     inequality violated, or a body without numbers); nothing is printed."""
 
     exit_code = EXIT_INVALID
+
+
+class ModelFileError(MeshpropsError, ValueError):
+    """A robot or simulator model (URDF, SDFormat, MJCF) that is unreadable, malformed, points
+    at a mesh that is not there, or uses a construct meshprops does not follow.
+
+    ``line`` is the 1-based line of the element concerned, when known.
+    """
+
+    def __init__(self, source: str, message: str, *, line: int | None = None) -> None:
+        self.line = line
+        super().__init__((f"line {line}: " if line is not None else "") + message, source=source)

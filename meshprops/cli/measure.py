@@ -14,6 +14,8 @@ from ..units import DEFAULT_LENGTH_UNIT, metres_per
 from .app import app, one_line_errors, say, write_report
 from .options import angular_velocity, manifest_point, parse_vector
 
+SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
+
 
 @app.command()
 @one_line_errors
@@ -27,8 +29,9 @@ def measure(
     axis: Annotated[Optional[str], typer.Option("--axis", help="Spin axis AX,AY,AZ for --rpm (normalized).")] = None,
     velocity: Annotated[Optional[str], typer.Option("--velocity", help="Velocity VX,VY,VZ of the centre of mass in m/s (with --spin and --about: orbital angular momentum).")] = None,
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document (SI) instead of a table.")] = False,
-    output_format: Annotated[Optional[str], typer.Option("--format", "-f", help="Output: table, json, urdf, sdf, mjcf (inertial blocks) or csv (assembly breakdown).")] = None,
+    output_format: Annotated[Optional[str], typer.Option("--format", "-f", help="Output: table, json, urdf, sdf, mjcf (a manifest: a complete model; mesh files: inertial blocks) or csv (assembly breakdown).")] = None,
     inertial_form: Annotated[str, typer.Option("--inertial-form", help="Simulator blocks: full (six tensor entries) or principal (principal moments plus orientation).")] = "full",
+    blocks_only: Annotated[bool, typer.Option("--blocks-only", help="With --format urdf|sdf|mjcf and a manifest: only the inertial blocks, not a complete model.")] = False,
     overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
     repair: Annotated[bool, typer.Option("--repair", help="Apply safe repairs first (reorient winding, flip inside-out shells and voids, drop degenerate and duplicate faces), each reported as a repaired_* warning. Holes are never filled.")] = False,
@@ -39,6 +42,8 @@ def measure(
     from ..output.serialize import body_to_dict, document
 
     chosen = choose_format(json_output, output_format)
+    if blocks_only and chosen not in SIMULATOR_FORMATS:
+        raise InputValueError("--blocks-only", "to be used with --format urdf, sdf or mjcf", chosen)
     omega = angular_velocity(spin, rpm, axis)
     com_velocity = parse_vector(velocity, "--velocity")
     if com_velocity is not None and omega is None:
@@ -47,7 +52,7 @@ def measure(
         if repair:
             raise InputValueError("--repair", "mesh files (repair is not applied to an assembly manifest)", "a manifest")
         options = MeasureOptions(angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples)
-        _measure_manifest(files, units, density, about, options, chosen, inertial_form, output)
+        _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only)
     units = units or DEFAULT_LENGTH_UNIT
     point = parse_vector(about, "--about")
     options = MeasureOptions(
@@ -73,7 +78,7 @@ def measure(
     raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
 
 
-def _measure_manifest(files, units, density, about, options, chosen, inertial_form, output) -> None:
+def _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only) -> None:
     """``measure MANIFEST.toml``: totals of an assembly; exits (1 when a body's mesh is invalid)."""
     from ..measure.assembly import measure_assembly, resolve_point
     from ..measure.manifest import load_manifest
@@ -88,8 +93,12 @@ def _measure_manifest(files, units, density, about, options, chosen, inertial_fo
         raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
     manifest = load_manifest(files[0])
     result = measure_assembly(manifest, options, about=resolve_point(manifest, manifest_point(manifest, about)))
-    text, notes = format_document(assembly_document(result), chosen, inertial_form=inertial_form)
-    write_report(text, output)
+    doc = assembly_document(result)
+    if chosen in SIMULATOR_FORMATS and not blocks_only:
+        notes = _write_complete_model(doc, chosen, inertial_form, output)
+    else:
+        text, notes = format_document(doc, chosen, inertial_form=inertial_form)
+        write_report(text, output)
     for note in tuple(result.warnings) + tuple(notes):
         say(f"warning: {note}")
     for item in result.items:
@@ -97,3 +106,30 @@ def _measure_manifest(files, units, density, about, options, chosen, inertial_fo
             first = item.measurement.validation.errors[0]
             say(f"{item.measurement.source}: invalid mesh: {first.code}: {first.message}")
     raise typer.Exit(EXIT_OK if result.valid else EXIT_INVALID)
+
+
+def _write_complete_model(doc: dict, file_format: str, inertial_form: str, output) -> tuple[str, ...]:
+    """A complete model of the assembly to ``output`` (mesh copies first), or to stdout; returns warnings.
+
+    Mesh paths are relative to ``output``'s folder (to the current folder on stdout). PLY and
+    ASCII STL meshes are copied beside ``output`` as binary STL; on stdout there is no place for
+    copies, so the model points at the sources and a warning says so.
+    """
+    from ..io.writers import copy_as_binary_stl
+    from ..output.sim_models import complete_model
+
+    target = output if output is not None else Path.cwd() / "model"
+    model = complete_model(doc, file_format, target, form=inertial_form)
+    notes = list(model.warnings)
+    if output is None and model.mesh_copies:
+        model = complete_model(doc, file_format, target, form=inertial_form, copy_meshes=False)
+        notes.append(
+            "some meshes are PLY or ASCII STL, which some simulators do not read; give -o OUT to get binary STL "
+            "copies beside the model"
+        )
+    for copy in model.mesh_copies:
+        copy_as_binary_stl(copy.source, copy.target)
+    if file_format == "mjcf" and output is not None and Path(output).suffix.lower() != ".xml":
+        notes.append(f"{output}: MuJoCo tells a model's format by its name; name an MJCF file *.xml")
+    write_report(model.text, output)
+    return tuple(notes)

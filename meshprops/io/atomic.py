@@ -22,17 +22,17 @@ def _report_mode(path: str) -> int:
         return 0o666 & ~mask
 
 
-def write_atomically(path: str, text: str) -> None:
-    """Write ``text`` to ``path`` via a temporary file and a rename: never half-written."""
+def write_atomically(path: str, text: str | bytes) -> None:
+    """Write ``text`` (UTF-8; ``bytes`` as they are) to ``path`` via a temporary file and a rename: never half-written."""
     directory = os.path.dirname(os.path.abspath(path))
     try:
         handle, temporary = tempfile.mkstemp(prefix=".meshprops-", dir=directory)
     except OSError as exc:  # missing or read-only directory: one clear line, not a traceback
         raise OutputFileError(path, exc.strerror or str(exc)) from None
     try:
-        with os.fdopen(handle, "w", encoding="utf-8") as stream:
+        with os.fdopen(handle, "wb") as stream:
             os.chmod(temporary, _report_mode(path))
-            stream.write(text)
+            stream.write(text if isinstance(text, bytes) else text.encode("utf-8"))
         os.replace(temporary, path)
     except BaseException as exc:
         if os.path.exists(temporary):

@@ -84,3 +84,31 @@ def write_ply(path: str | os.PathLike, vertices, faces, *, binary: bool = True) 
             text = ["{!r} {!r} {!r}".format(*map(float, v)) for v in vertices]
             text += ["3 {} {} {}".format(*map(int, f)) for f in faces]
             handle.write(("\n".join(text) + "\n").encode("ascii"))
+
+
+def copy_as_binary_stl(source: str | os.PathLike, target: str | os.PathLike) -> None:
+    """Write the mesh file ``source`` (any format meshprops reads) as binary STL at ``target``.
+
+    The coordinates are copied in the file's own unit (float32, as binary STL stores them),
+    through a temporary file and a rename, so ``target`` is never half-written.
+    """
+    import tempfile
+
+    from ..errors import OutputFileError
+    from .loaders import load_mesh
+
+    mesh = load_mesh(source, "m")  # "m": the chunks are then the file's own numbers
+    triangles = np.concatenate(list(mesh.triangle_chunks())) if mesh.face_count else np.zeros((0, 3, 3))
+    folder = os.path.dirname(os.path.abspath(target))
+    try:
+        handle, temporary = tempfile.mkstemp(prefix=".meshprops-", suffix=".stl", dir=folder)
+    except OSError as exc:
+        raise OutputFileError(str(target), exc.strerror or str(exc)) from None
+    os.close(handle)
+    try:
+        write_binary_stl(temporary, triangles, header=b"meshprops binary STL copy of " + os.path.basename(source).encode("utf-8", "replace"))
+        os.replace(temporary, target)
+    except OSError as exc:
+        if os.path.exists(temporary):
+            os.unlink(temporary)
+        raise OutputFileError(str(target), exc.strerror or str(exc)) from None

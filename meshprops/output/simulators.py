@@ -80,12 +80,40 @@ class SimulatorExport:
     warnings: tuple[str, ...]
 
 
+#: Entries smaller than this fraction of their group's scale are round-off and print as 0.
+ROUND_OFF = 1e-12
+
+
+def clean_number(value: float, scale: float) -> str:
+    """Shortest round-trip text of ``value``; ``0`` where ``|value| <= ROUND_OFF * scale`` (round-off)."""
+    value = float(value)
+    if abs(value) <= ROUND_OFF * scale:
+        return "0"
+    return repr(value + 0.0)  # + 0.0 turns -0.0 into 0.0
+
+
 def _number(value: float) -> str:
-    return repr(float(value) + 0.0)  # + 0.0 turns -0.0 into 0.0
+    return clean_number(value, 0.0)
 
 
-def _numbers(values) -> str:
-    return " ".join(_number(v) for v in values)
+def _numbers(values, scale: float = 0.0) -> str:
+    """Numbers of one group (a position, a tensor's entries): round-off below 1e-12 of the largest prints as 0."""
+    values = [float(v) for v in values]
+    scale = max([scale, *(abs(v) for v in values)])
+    return " ".join(clean_number(v, scale) for v in values)
+
+
+def _angles(values) -> str:
+    return _numbers(values, 1.0)
+
+
+def _six(values) -> dict[str, str]:
+    """``ixx ixy ixz iyy iyz izz`` of a symmetric (3, 3) tensor, round-off relative to its largest entry."""
+    scale = float(np.max(np.abs(values)))
+    return {key: clean_number(values[i, j], scale) for key, (i, j) in SIX_ENTRIES}
+
+
+SIX_ENTRIES = (("ixx", (0, 0)), ("ixy", (0, 1)), ("ixz", (0, 2)), ("iyy", (1, 1)), ("iyz", (1, 2)), ("izz", (2, 2)))
 
 
 def _label(body: dict, index: int) -> str:
@@ -124,6 +152,20 @@ def _block_values(body: dict, label: str) -> tuple[float, np.ndarray, np.ndarray
     return mass, com, tensor, moments, axes
 
 
+def checked_block(body: dict, label: str):
+    """``((mass, com, tensor, moments, axes), warning or None)`` of one body, or raise.
+
+    Raises :class:`SimulatorExportError` for the refusals of :func:`_block_values` and for an
+    ``impossible`` plausibility; an ``unusual`` one is returned as a warning.
+    """
+    values = _block_values(body, label)
+    plausibility = body.get("plausibility")
+    if plausibility and plausibility["status"] == "impossible":
+        raise SimulatorExportError(f"{label}: implausible inertia: {plausibility['message']}")
+    warning = f"{label}: {plausibility['message']}" if plausibility and plausibility["status"] == "unusual" else None
+    return values, warning
+
+
 def inertial_blocks(doc: dict, file_format: str, *, form: str = "full") -> SimulatorExport:
     """Write the inertial element of every body (and of the total, if any) of a JSON document.
 
@@ -153,12 +195,9 @@ def inertial_blocks(doc: dict, file_format: str, *, form: str = "full") -> Simul
     checked = []
     warnings: list[str] = []
     for label, body, frame_text in items:
-        values = _block_values(body, label)
-        plausibility = body.get("plausibility")
-        if plausibility and plausibility["status"] == "impossible":
-            raise SimulatorExportError(f"{label}: implausible inertia: {plausibility['message']}")
-        if plausibility and plausibility["status"] == "unusual":
-            warnings.append(f"{label}: {plausibility['message']}")
+        values, warning = checked_block(body, label)
+        if warning is not None:
+            warnings.append(warning)
         checked.append((label, frame_text, values))
 
     name = (doc.get("assembly") or {}).get("name") or "meshprops"
@@ -209,12 +248,9 @@ def _urdf_link(label, mass, com, tensor, moments, axes, form) -> ET.Element:
     rotation, values = _orientation(form, tensor, moments, axes)
     link = ET.Element("link", {"name": label})
     inertial = ET.SubElement(link, "inertial")
-    ET.SubElement(inertial, "origin", {"xyz": _numbers(com), "rpy": _numbers(rpy_from_rotation(rotation))})
+    ET.SubElement(inertial, "origin", {"xyz": _numbers(com), "rpy": _angles(rpy_from_rotation(rotation))})
     ET.SubElement(inertial, "mass", {"value": _number(mass)})
-    ET.SubElement(inertial, "inertia", {
-        "ixx": _number(values[0, 0]), "ixy": _number(values[0, 1]), "ixz": _number(values[0, 2]),
-        "iyy": _number(values[1, 1]), "iyz": _number(values[1, 2]), "izz": _number(values[2, 2]),
-    })  # fmt: skip
+    ET.SubElement(inertial, "inertia", _six(values))
     return link
 
 
@@ -222,11 +258,11 @@ def _sdf_link(label, mass, com, tensor, moments, axes, form) -> ET.Element:
     rotation, values = _orientation(form, tensor, moments, axes)
     link = ET.Element("link", {"name": label})
     inertial = ET.SubElement(link, "inertial")
-    ET.SubElement(inertial, "pose").text = _numbers(list(com) + list(rpy_from_rotation(rotation)))
+    ET.SubElement(inertial, "pose").text = _numbers(com) + " " + _angles(rpy_from_rotation(rotation))
     ET.SubElement(inertial, "mass").text = _number(mass)
     inertia = ET.SubElement(inertial, "inertia")
-    for key, (i, j) in (("ixx", (0, 0)), ("ixy", (0, 1)), ("ixz", (0, 2)), ("iyy", (1, 1)), ("iyz", (1, 2)), ("izz", (2, 2))):
-        ET.SubElement(inertia, key).text = _number(values[i, j])
+    for key, text in _six(values).items():
+        ET.SubElement(inertia, key).text = text
     return link
 
 
@@ -242,7 +278,7 @@ def _mjcf_body(label, mass, com, tensor, moments, axes, form) -> ET.Element:
     else:
         attributes = {
             "pos": _numbers(com),
-            "quat": _numbers(quaternion_from_rotation(np.asarray(axes).T)),
+            "quat": _angles(quaternion_from_rotation(np.asarray(axes).T)),
             "mass": _number(mass),
             "diaginertia": _numbers(moments),
         }

@@ -42,6 +42,8 @@ def cases() -> dict[str, list[str]]:
     for fmt in ("table", "json", "csv", "urdf", "sdf", "mjcf"):
         out[f"rover.{fmt}"] = ["measure", manifest, "--format", fmt]
     out["rover.mjcf-principal"] = ["measure", manifest, "--format", "mjcf", "--inertial-form", "principal"]
+    for fmt in ("urdf", "sdf", "mjcf"):  # the inertial blocks alone (complete models above)
+        out[f"rover.{fmt}-blocks"] = ["measure", manifest, "--format", fmt, "--blocks-only"]
     out["rover.spin.json"] = ["measure", manifest, "--json", "--about", "mast_base", "--rpm", "120", "--axis", "0,0,1"]
     out["rover.check.table"] = ["check", manifest]
     out["rover.check.json"] = ["check", manifest, "--json"]
