@@ -129,3 +129,13 @@ class SimulatorExportError(MeshpropsError, ValueError):
     inequality violated, or a body without numbers); nothing is printed."""
 
     exit_code = EXIT_INVALID
+
+
+class MissingExtraError(MeshpropsError, ImportError):
+    """An optional part of meshprops whose libraries are not installed (``extra`` names the
+    pip extra that brings them, ``feature`` what needs it)."""
+
+    def __init__(self, feature: str, extra: str) -> None:
+        self.feature = feature
+        self.extra = extra
+        super().__init__(f'{feature}: install the extra with pip install "meshprops[{extra}]"')

@@ -16,8 +16,9 @@ equivalent uniform ellipsoid (same mass and principal moments) as an outline;
 the findings' faces and regions on top of everything, so hidden ones still
 show; a legend, a scale bar and the directions of the axes on every view.
 
-Drawing only: above ``face_budget`` faces a body is decimated by vertex
-clustering (:func:`decimate_for_drawing`). Every number stated in a picture
+Drawing only: above ``face_budget`` faces in all (shared among the bodies in
+proportion to their face counts) the bodies are decimated by vertex clustering
+(:func:`decimate_for_drawing`, once for all views). Every number stated in a picture
 comes from the caller, computed on the full mesh.
 
 The projection is exposed on the SVG (``data-right``, ``data-up``,
@@ -61,8 +62,10 @@ ELLIPSOID_COLOUR = "#34393f"
 AXIS_STYLES = (("#b3341f", ""), ("#1d7a43", "7 4"), ("#26408b", "2 3"))
 WORLD_AXIS_COLOURS = {"x": "#b3341f", "y": "#1d7a43", "z": "#26408b"}
 
-#: Faces drawn per body and view; larger bodies are decimated for drawing only.
-FACE_BUDGET = 4000
+#: Faces drawn per view, all bodies together; above it bodies are decimated for drawing only.
+FACE_BUDGET = 8000
+#: No body is decimated below this many faces.
+BODY_FACE_FLOOR = 400
 #: At most this many faces of one finding are drawn (the count is stated in the list).
 HIGHLIGHT_FACE_LIMIT = 3000
 
@@ -151,6 +154,8 @@ class BodyPicture:
     center_of_mass : (3,) m, or ``None`` when not known (invalid mesh)
     closed : true when the surface passed validation (back faces are then not drawn)
     colour : ``#rrggbb``; ``None`` takes the palette colour of the body's position
+    drawing : (G, 3, 3) m, the triangles actually drawn (decimated), or ``None`` to draw
+        ``triangles``; findings always refer to ``triangles``
     """
 
     name: str
@@ -158,6 +163,7 @@ class BodyPicture:
     center_of_mass: np.ndarray | None = None
     closed: bool = True
     colour: str | None = None
+    drawing: np.ndarray | None = None
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -451,7 +457,7 @@ def _face_groups(picture: Picture, projection: Projection, face_budget: int) -> 
     for index, body in enumerate(picture.bodies):
         if not len(body.triangles):
             continue
-        drawn = decimate_for_drawing(body.triangles, face_budget)
+        drawn = body.drawing if body.drawing is not None else decimate_for_drawing(body.triangles, face_budget)
         normals = np.cross(drawn[:, 1] - drawn[:, 0], drawn[:, 2] - drawn[:, 0])
         lengths = np.linalg.norm(normals, axis=1)
         usable = lengths > 0
@@ -605,7 +611,7 @@ def draw_view(
     view : one of :data:`VIEWS` (or any :class:`View`)
     width, height : pixel size of the whole view, legend included
     legend_width : pixels on the right kept for the legend
-    face_budget : faces per body drawn at most (decimated above it, for drawing only)
+    face_budget : faces drawn at most, all bodies together (decimated above it, for drawing only)
     length_text, moment_text : how lengths (m) and moments (kg·m²) are written in the legend
 
     Returns
@@ -626,6 +632,7 @@ def draw_view(
             css_class="frame",
         )
     ]
+    picture = prepared_for_drawing(picture, face_budget)
     groups += _face_groups(picture, projection, face_budget)
     inertia = picture.inertia
     if inertia is not None:
@@ -787,8 +794,31 @@ def _shorten(text: str, limit: int) -> str:
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
+def prepared_for_drawing(picture: Picture, face_budget: int = FACE_BUDGET) -> Picture:
+    """``picture`` with each body's drawn triangles decimated to its share of ``face_budget``.
+
+    The share is proportional to the body's face count, at least :data:`BODY_FACE_FLOOR`.
+    Bodies already prepared are kept.
+    """
+    if all(body.drawing is not None or not len(body.triangles) for body in picture.bodies):
+        return picture
+    total = sum(len(body.triangles) for body in picture.bodies) or 1
+    bodies = []
+    for body in picture.bodies:
+        if body.drawing is None and len(body.triangles):
+            share = max(BODY_FACE_FLOOR, int(face_budget * len(body.triangles) / total))
+            body = BodyPicture(body.name, body.triangles, body.center_of_mass, body.closed, body.colour,
+                               decimate_for_drawing(body.triangles, share))
+        bodies.append(body)
+    return Picture(tuple(bodies), picture.inertia, picture.highlights, picture.total_label)
+
+
 def draw_views(picture: Picture, views: Sequence[View] = VIEWS, **options) -> tuple[Scene, ...]:
-    """:func:`draw_view` for each of ``views`` (default: the three orthographic and the oblique)."""
+    """:func:`draw_view` for each of ``views`` (default: the three orthographic and the oblique).
+
+    The bodies are decimated once for all views (see :func:`prepared_for_drawing`).
+    """
+    picture = prepared_for_drawing(picture, options.get("face_budget", FACE_BUDGET))
     return tuple(draw_view(picture, view, **options) for view in views)
 
 
@@ -801,6 +831,11 @@ def _attribute(value) -> str:
 
 def _points_text(points: np.ndarray) -> str:
     return " ".join(f"{x:.2f},{y:.2f}" for x, y in np.asarray(points, dtype=np.float64))
+
+
+def _face_svg(item: Polygon) -> str:
+    points = " ".join(f"{x:.1f},{y:.1f}" for x, y in np.asarray(item.points, dtype=np.float64))
+    return f'<polygon points="{points}" fill="{item.fill}" stroke="{item.stroke or item.fill}"/>'
 
 
 def _primitive_svg(item) -> str:
@@ -850,8 +885,14 @@ def scene_to_svg(scene: Scene, *, standalone: bool = False, id_prefix: str = "")
         if group.css_class:
             attributes.append(f'class="{_attribute(group.css_class)}"')
         attributes += [f'data-{key}="{_attribute(value)}"' for key, value in group.data.items()]
-        lines.append(f"<g {' '.join(attributes)}>" if attributes else "<g>")
-        lines.extend(_primitive_svg(item) for item in group.items)
+        if group.css_class == "faces":  # thousands of faces: their common stroke is set once
+            width = group.items[0].stroke_width if group.items else 0.6
+            attributes.append(f'stroke-width="{width:g}" stroke-linejoin="round"')
+            lines.append(f"<g {' '.join(attributes)}>")
+            lines.extend(_face_svg(item) for item in group.items)
+        else:
+            lines.append(f"<g {' '.join(attributes)}>" if attributes else "<g>")
+            lines.extend(_primitive_svg(item) for item in group.items)
         lines.append("</g>")
     lines.append("</svg>")
     return "\n".join(lines)

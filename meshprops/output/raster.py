@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ..errors import MeshpropsError
+from ..errors import MissingExtraError
 from .drawing import Circle, Polygon, Scene, Text
 
 #: Pixels per inch of the figure; matplotlib sizes text in points (1/72 inch).
@@ -28,9 +28,7 @@ def _matplotlib():
         matplotlib.use("Agg", force=True)
         from matplotlib.figure import Figure
     except ImportError:
-        raise MeshpropsError(
-            'PNG pictures need matplotlib: install the extra with pip install "meshprops[report]"'
-        ) from None
+        raise MissingExtraError("PNG pictures (--png) need matplotlib", "report") from None
     return Figure
 
 

@@ -29,6 +29,7 @@ EXAMPLES = {
     "PhysicsError": lambda: errors.PhysicsError("negative principal moment", source="part.stl"),
     "ManifestError": lambda: errors.ManifestError("rover.toml", "body[2].material", "unknown material 'alu'", line=12),
     "SimulatorExportError": lambda: errors.SimulatorExportError("chassis: inertia tensor is not positive definite"),
+    "MissingExtraError": lambda: errors.MissingExtraError("PNG pictures (--png) need matplotlib", "report"),
 }
 
 
