@@ -177,6 +177,7 @@ class Highlight:
     faces : (k,) int, face numbers in that body's triangles (all of them, not only examples)
     points : (j, 3) m, places to ring (face centroids, sample points)
     boxes : (b, 2, 3) m, regions drawn as box outlines (low and high corners)
+    edges : (e, 2, 3) m, edges drawn as thick lines (open or non-manifold edges)
     """
 
     code: str
@@ -185,6 +186,7 @@ class Highlight:
     faces: np.ndarray = field(default_factory=lambda: np.zeros(0, dtype=np.int64))
     points: np.ndarray = field(default_factory=lambda: np.zeros((0, 3)))
     boxes: np.ndarray = field(default_factory=lambda: np.zeros((0, 2, 3)))
+    edges: np.ndarray = field(default_factory=lambda: np.zeros((0, 2, 3)))
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -227,12 +229,14 @@ class Picture:
         when the numbers were withheld
     highlights : findings to draw
     total_label : legend text of the whole's centre of mass
+    numbers_withheld : true when validation failed (the legend says so)
     """
 
     bodies: tuple[BodyPicture, ...]
     inertia: InertiaPicture | None = None
     highlights: tuple[Highlight, ...] = ()
     total_label: str = "centre of mass"
+    numbers_withheld: bool = False
 
 
 # ----------------------------------------------------------------------------- scene primitives
@@ -374,6 +378,7 @@ def _outline_points(picture: Picture) -> np.ndarray:
     for highlight in picture.highlights:
         parts.append(np.asarray(highlight.points, dtype=np.float64).reshape(-1, 3))
         parts.append(np.asarray(highlight.boxes, dtype=np.float64).reshape(-1, 3))
+        parts.append(np.asarray(highlight.edges, dtype=np.float64).reshape(-1, 3))
     points = np.concatenate([p for p in parts if len(p)]) if any(len(p) for p in parts) else np.zeros((1, 3))
     return points
 
@@ -502,6 +507,9 @@ def _highlight_groups(picture: Picture, projection: Projection, view: View) -> l
             order = np.argsort(projection.depth(triangles).mean(axis=1), kind="stable")
             for pixels in projection.to_pixels(triangles[order]):
                 items.append(Polygon(pixels, FINDING_FILL, stroke=FINDING_EDGE, stroke_width=1.4, opacity=0.9))
+        for segment in projection.to_pixels(np.asarray(highlight.edges, dtype=np.float64).reshape(-1, 2, 3)[:HIGHLIGHT_FACE_LIMIT]):
+            items.append(Polygon(segment, None, stroke=FINDING_EDGE, stroke_width=4.2, closed=False))
+            items.append(Polygon(segment, None, stroke=FINDING_FILL, stroke_width=2.0, closed=False))
         for low_high in np.asarray(highlight.boxes, dtype=np.float64).reshape(-1, 2, 3):
             items.extend(_box_outline(low_high, projection))
         for point in projection.to_pixels(np.asarray(highlight.points, dtype=np.float64).reshape(-1, 3)):
@@ -783,7 +791,7 @@ def _legend(picture: Picture, width: int, legend_width: int, height: int, length
         codes = sorted({h.code for h in picture.highlights})
         items.append(Text((left + 22, y), "finding: " + _shorten(", ".join(codes), 20), 11.0))
         y += step
-    if picture.inertia is None:
+    if picture.numbers_withheld:
         items.append(Text((left + 4, y + 4), "numbers withheld:", 11.0, "#8a1c1c", bold=True))
         items.append(Text((left + 4, y + 4 + step), "the mesh failed validation", 11.0, "#8a1c1c"))
         y += 4 + step
@@ -810,7 +818,7 @@ def prepared_for_drawing(picture: Picture, face_budget: int = FACE_BUDGET) -> Pi
             body = BodyPicture(body.name, body.triangles, body.center_of_mass, body.closed, body.colour,
                                decimate_for_drawing(body.triangles, share))
         bodies.append(body)
-    return Picture(tuple(bodies), picture.inertia, picture.highlights, picture.total_label)
+    return Picture(tuple(bodies), picture.inertia, picture.highlights, picture.total_label, picture.numbers_withheld)
 
 
 def draw_views(picture: Picture, views: Sequence[View] = VIEWS, **options) -> tuple[Scene, ...]:

@@ -52,7 +52,21 @@ class Report:
 # ----------------------------------------------------------------------------- where findings are
 
 
-def finding_faces(mesh, finding) -> np.ndarray:
+@dataclass(frozen=True, slots=True, eq=False)
+class FindingPlace:
+    """Where a finding is on the full mesh.
+
+    Attributes
+    ----------
+    faces : (k,) int, face numbers as in the file
+    edges : (e, 2, 3) m, the edges concerned (open or non-manifold edges), mesh axes
+    """
+
+    faces: np.ndarray
+    edges: np.ndarray
+
+
+def finding_place(mesh, finding) -> FindingPlace:
     """Every face a finding concerns, on the full mesh (face numbers as in the file).
 
     Edge findings are located again on the welded mesh (all faces, not only the few
@@ -64,31 +78,39 @@ def finding_faces(mesh, finding) -> np.ndarray:
     from ..geometry.welding import weld_exact
 
     code = finding.code
+    no_edges = np.zeros((0, 2, 3))
     if code in ("open_edges", "nonmanifold_edges", "inconsistent_winding", "self_intersection"):
         topology = weld_exact(mesh)
         if code == "self_intersection":
-            return np.unique(self_intersection_pairs(mesh, topology))
+            return FindingPlace(np.unique(self_intersection_pairs(mesh, topology)), no_edges)
         uses = edge_uses(topology)
         per_use = uses.uses[uses.edge]
-        if code == "open_edges":
-            return np.unique(uses.faces[per_use == 1])
-        if code == "nonmanifold_edges":
-            return np.unique(uses.faces[per_use > 2])
+        if code in ("open_edges", "nonmanifold_edges"):
+            chosen = per_use == 1 if code == "open_edges" else per_use > 2
+            positions = np.empty((topology.id_bound, 3))
+            positions[topology.face_vertices.reshape(-1)] = mesh.triangles().reshape(-1, 3)
+            edges = np.stack([positions[uses.tails[chosen]], positions[uses.heads[chosen]]], axis=1)
+            return FindingPlace(np.unique(uses.faces[chosen]), edges)
         minority = np.flatnonzero(orientation(topology, uses).minority())
-        if minority.size:
-            return minority
-        misoriented = (uses.uses == 2) & (uses.forward_uses != 1)
-        return np.unique(uses.faces[misoriented[uses.edge]])
-    return np.unique(np.array([place["face"] for place in finding.where if "face" in place], dtype=np.int64))
+        if not minority.size:
+            misoriented = (uses.uses == 2) & (uses.forward_uses != 1)
+            minority = np.unique(uses.faces[misoriented[uses.edge]])
+        return FindingPlace(minority, no_edges)
+    faces = np.unique(np.array([place["face"] for place in finding.where if "face" in place], dtype=np.int64))
+    return FindingPlace(faces, no_edges)
 
 
 def _highlights_for(findings, mesh, body_index: int) -> tuple[list[Highlight], list[bool]]:
     highlights, drawn = [], []
     for finding in findings:
-        faces = finding_faces(mesh, finding) if mesh is not None else np.zeros(0, dtype=np.int64)
-        points = np.array([place["point"] for place in finding.where if "point" in place], dtype=np.float64).reshape(-1, 3)
+        if mesh is not None:
+            place = finding_place(mesh, finding)
+        else:
+            place = FindingPlace(np.zeros(0, dtype=np.int64), np.zeros((0, 2, 3)))
+        faces = place.faces
+        points = np.array([where["point"] for where in finding.where if "point" in where], dtype=np.float64).reshape(-1, 3)
         if faces.size or points.size:
-            highlights.append(Highlight(finding.code, finding.severity, body_index, faces, points))
+            highlights.append(Highlight(finding.code, finding.severity, body_index, faces, points, edges=place.edges))
             drawn.append(True)
         else:
             drawn.append(False)
@@ -123,7 +145,9 @@ def mesh_report(measurement, mesh, document: dict, *, footer: str) -> Report:
     properties = measurement.properties
     body = BodyPicture(name, triangles, properties.center_of_mass if properties else None, closed=measurement.valid)
     highlights, drawn = _highlights_for(measurement.findings, mesh, 0)
-    picture = Picture((body,), _inertia(properties, measurement.principal), tuple(highlights))
+    picture = Picture(
+        (body,), _inertia(properties, measurement.principal), tuple(highlights), numbers_withheld=not measurement.valid
+    )
     scenes = draw_views(picture)
     item = document["bodies"][0]
     findings = [FindingRow(name, finding, shown) for finding, shown in zip(item["findings"], drawn)]
@@ -186,16 +210,22 @@ def assembly_report(result, document: dict, *, footer: str) -> Report:
         found, drawn = _highlights_for(item.measurement.findings, item.mesh, index)
         # Locations of a finding are in the mesh's own axes; the picture is in the assembly's.
         placed = []
+        rotation, translation = item.placement.rotation, item.placement.translation
         for highlight in found:
-            points = highlight.points @ item.placement.rotation.T + item.placement.translation if highlight.points.size else highlight.points
-            placed.append(Highlight(highlight.code, highlight.severity, index, highlight.faces, points))
+            points = highlight.points @ rotation.T + translation if highlight.points.size else highlight.points
+            edges = highlight.edges @ rotation.T + translation if highlight.edges.size else highlight.edges
+            placed.append(Highlight(highlight.code, highlight.severity, index, highlight.faces, points, edges=edges))
         highlights += placed
         drawn_by_body.append(drawn)
     for overlap in result.overlaps:
         highlights.append(Highlight("bodies_overlap", "warning", overlap.first_index, boxes=overlap.estimate.box[None]))
     total = result.total
     picture = Picture(
-        tuple(bodies), _inertia(total.properties, total.principal), tuple(highlights), total_label="total centre of mass"
+        tuple(bodies),
+        _inertia(total.properties, total.principal),
+        tuple(highlights),
+        total_label="total centre of mass",
+        numbers_withheld=not result.valid,
     )
     scenes = draw_views(picture)
     findings = []
@@ -220,6 +250,7 @@ def assembly_report(result, document: dict, *, footer: str) -> Report:
         cautions=document.get("cautions", []),
         footer=footer,
         summary_table=_bodies_summary(document),
+        sound_text="Sound: every body passed validation and the totals are given",
     )
     return Report(page, scenes, result.valid)
 

@@ -19,10 +19,11 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from .drawing import Scene, scene_to_svg
+from .table import _fmt as _table_format
 
 def table_number(value: float) -> str:
-    """A value in the digits of the terminal table: six significant digits, -0 written as 0."""
-    return f"{value + 0.0:.6g}"
+    """A value in the digits of the terminal table (its own formatter, without the sign's padding)."""
+    return _table_format(value).strip()
 
 
 _STYLE = """
@@ -202,6 +203,7 @@ def render_report(
     footer: str,
     summary_table: str = "",
     number_text: Callable[[float], str] = table_number,
+    sound_text: str = "Sound: the surface passed validation and the numbers are given",
 ) -> str:
     """The report page of one part or one assembly.
 
@@ -221,7 +223,7 @@ def render_report(
     """
     parts = []
     if valid:
-        parts.append('<div class="verdict sound">✓ Sound: the surface passed validation and the numbers are given</div>')
+        parts.append(f'<div class="verdict sound">✓ {_e(sound_text)}</div>')
     else:
         parts.append('<div class="verdict withheld">✗ Numbers withheld: validation found errors</div>')
         parts.extend(f'<p class="why">{_e(reason)}</p>' for reason in reasons)

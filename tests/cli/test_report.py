@@ -177,7 +177,7 @@ def test_open_mesh_report_shows_why_and_highlights_the_open_edges_faces(tmp_path
     expected = sorted(np.unique(reference.edges_face[single]).tolist())
     assert len(expected) == 3
     for svg in _svgs(page):
-        group = svg.find(f".//g[@class='finding'][@data-code='open_edges']")
+        group = svg.find(".//g[@class='finding'][@data-code='open_edges']")
         assert group is not None
         assert sorted(int(f) for f in group.get("data-faces").split()) == expected
         assert svg.find(".//g[@class='com-marker com-total']") is None
@@ -238,3 +238,35 @@ def test_report_into_a_missing_folder_is_one_line_and_writes_nothing(tmp_path, p
     assert result.exit_code == 2
     assert result.stderr.strip().startswith("meshprops: error:") and len(result.stderr.strip().splitlines()) == 1
     assert not target.exists()
+
+
+def test_assembly_report_draws_an_overlap_region_and_an_invalid_body(tmp_path, open_box_stl):
+    block = tmp_path / "block.stl"
+    writers.write_binary_stl(block, shapes.triangles_of(*shapes.box((20.0, 20.0, 20.0))))
+    manifest = tmp_path / "pair.toml"
+    manifest.write_text(
+        '[assembly]\nname = "pair"\nlength_unit = "mm"\nmanifest_version = 1\n\n'
+        '[[body]]\nname = "left"\nmesh = "block.stl"\ndensity = 1000\n\n'
+        '[[body]]\nname = "right"\nmesh = "block.stl"\ndensity = 1000\ntranslation = [10, 0, 0]\n',
+        encoding="utf-8",
+    )
+    page_path = tmp_path / "pair.html"
+    result = invoke("report", manifest, "-o", page_path)
+    assert result.exit_code == 0, result.output
+    page = page_path.read_text(encoding="utf-8")
+    # The shared volume is the box x in [0, 10] mm, y and z in [-10, 10] mm (by construction).
+    for svg in _svgs(page):
+        group = svg.find(".//g[@class='finding'][@data-code='bodies_overlap']")
+        assert group is not None
+        outline = np.array([[float(v) for v in pair.split(",")] for pair in group.find("polygon").get("points").split()])
+        project = _stated_projection(svg)
+        corners = np.array([project([x, y, z]) for x in (0.0, 0.01) for y in (-0.01, 0.01) for z in (-0.01, 0.01)])
+        assert np.allclose(outline.min(axis=0), corners.min(axis=0), atol=1.0)
+        assert np.allclose(outline.max(axis=0), corners.max(axis=0), atol=1.0)
+    shutil.copy(open_box_stl, tmp_path / "lid.stl")
+    manifest.write_text(manifest.read_text(encoding="utf-8") + '\n[[body]]\nname = "lid"\nmesh = "lid.stl"\ndensity = 1000\n', encoding="utf-8")
+    result = invoke("report", manifest, "-o", page_path)
+    assert result.exit_code == 1
+    page = page_path.read_text(encoding="utf-8")
+    assert "Numbers withheld" in page and "data-path=\"total." not in page
+    assert re.search(r'class="finding" data-code="open_edges" data-severity="error" data-body="2"', page)
