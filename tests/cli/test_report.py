@@ -270,3 +270,15 @@ def test_assembly_report_draws_an_overlap_region_and_an_invalid_body(tmp_path, o
     page = page_path.read_text(encoding="utf-8")
     assert "Numbers withheld" in page and "data-path=\"total." not in page
     assert re.search(r'class="finding" data-code="open_edges" data-severity="error" data-body="2"', page)
+
+
+def test_png_without_the_extra_is_one_line_and_writes_nothing(tmp_path, part_stl, monkeypatch):
+    import sys
+
+    monkeypatch.setitem(sys.modules, "matplotlib", None)  # as if the extra were not installed
+    folder, page_path = tmp_path / "pictures", tmp_path / "r.html"
+    result = invoke("report", part_stl, "-o", page_path, "--png", folder)
+    assert result.exit_code == 2
+    lines = result.stderr.strip().splitlines()
+    assert len(lines) == 1 and 'pip install "meshprops[report]"' in lines[0], result.stderr
+    assert not folder.exists() and not page_path.exists()
