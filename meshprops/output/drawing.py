@@ -156,6 +156,7 @@ class BodyPicture:
     colour : ``#rrggbb``; ``None`` takes the palette colour of the body's position
     drawing : (G, 3, 3) m, the triangles actually drawn (decimated), or ``None`` to draw
         ``triangles``; findings always refer to ``triangles``
+    bounds : (2, 3) m, low and high corner of ``triangles``, or ``None`` to compute it
     """
 
     name: str
@@ -164,6 +165,7 @@ class BodyPicture:
     closed: bool = True
     colour: str | None = None
     drawing: np.ndarray | None = None
+    bounds: np.ndarray | None = None
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -321,15 +323,20 @@ def decimate_for_drawing(triangles: np.ndarray, face_budget: int = FACE_BUDGET) 
     low = corners.min(axis=0)
     span = float(np.max(corners.max(axis=0) - low)) or 1.0
     cells = max(4, int(2.0 * math.sqrt(face_budget)))
+    scaled = (corners - low) * (1.0 / span)
     while True:
-        quantized = np.minimum(np.floor((corners - low) / span * cells), cells - 1).astype(np.int64)
+        quantized = np.minimum((scaled * cells).astype(np.int64), cells - 1)
         keys = (quantized[:, 0] * cells + quantized[:, 1]) * cells + quantized[:, 2]
         unique, inverse = np.unique(keys, return_inverse=True)
         faces = inverse.reshape(-1, 3)
         keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 2] != faces[:, 0])
         faces = faces[keep]
-        if len(faces):
-            _, first = np.unique(np.sort(faces, axis=1), axis=0, return_index=True)
+        if len(faces):  # repeated faces (one cell triple reached from many faces) are kept once
+            order = np.sort(faces, axis=1)
+            if len(unique) < 2_000_000:  # the three ids packed into one int64 key (faster than rows)
+                _, first = np.unique((order[:, 0] * len(unique) + order[:, 1]) * len(unique) + order[:, 2], return_index=True)
+            else:
+                _, first = np.unique(order, axis=0, return_index=True)
             faces = faces[np.sort(first)]
         if len(faces) <= face_budget or cells <= 4:
             break
@@ -370,7 +377,7 @@ def body_colour(picture: Picture, index: int) -> str:
 
 def _outline_points(picture: Picture) -> np.ndarray:
     """3-D points that must fit in every view: mesh corners, centres, ellipsoid, axis tips."""
-    parts = [b.triangles.reshape(-1, 3) for b in picture.bodies if len(b.triangles)]
+    parts = [(b.drawing if b.drawing is not None else b.triangles).reshape(-1, 3) for b in picture.bodies if len(b.triangles)]
     parts += [np.asarray(b.center_of_mass).reshape(1, 3) for b in picture.bodies if b.center_of_mass is not None]
     if picture.inertia is not None:
         parts.append(_ellipsoid_box(picture.inertia))
@@ -383,8 +390,13 @@ def _outline_points(picture: Picture) -> np.ndarray:
     return points
 
 
+def _bounds(triangles: np.ndarray) -> np.ndarray:
+    corners = np.asarray(triangles, dtype=np.float64).reshape(-1, 3)
+    return np.array([corners.min(axis=0), corners.max(axis=0)])
+
+
 def _extent(picture: Picture) -> tuple[np.ndarray, np.ndarray]:
-    parts = [b.triangles.reshape(-1, 3) for b in picture.bodies if len(b.triangles)]
+    parts = [(b.bounds if b.bounds is not None else _bounds(b.triangles)) for b in picture.bodies if len(b.triangles)]
     parts += [np.asarray(b.center_of_mass).reshape(1, 3) for b in picture.bodies if b.center_of_mass is not None]
     if not parts:
         return np.zeros(3), np.zeros(3)
@@ -808,7 +820,7 @@ def prepared_for_drawing(picture: Picture, face_budget: int = FACE_BUDGET) -> Pi
     The share is proportional to the body's face count, at least :data:`BODY_FACE_FLOOR`.
     Bodies already prepared are kept.
     """
-    if all(body.drawing is not None or not len(body.triangles) for body in picture.bodies):
+    if all(body.drawing is not None and body.bounds is not None or not len(body.triangles) for body in picture.bodies):
         return picture
     total = sum(len(body.triangles) for body in picture.bodies) or 1
     bodies = []
@@ -816,7 +828,7 @@ def prepared_for_drawing(picture: Picture, face_budget: int = FACE_BUDGET) -> Pi
         if body.drawing is None and len(body.triangles):
             share = max(BODY_FACE_FLOOR, int(face_budget * len(body.triangles) / total))
             body = BodyPicture(body.name, body.triangles, body.center_of_mass, body.closed, body.colour,
-                               decimate_for_drawing(body.triangles, share))
+                               decimate_for_drawing(body.triangles, share), _bounds(body.triangles))
         bodies.append(body)
     return Picture(tuple(bodies), picture.inertia, picture.highlights, picture.total_label, picture.numbers_withheld)
 
