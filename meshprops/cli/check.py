@@ -38,7 +38,7 @@ def check(
     text = to_json(doc) if json_output else render_check_table(doc)
     write_report(text, output)
     if html_report is not None:
-        _write_html_report(files, units, results, html_report)
+        _write_html_report(results, html_report)
     for result in results:
         if result.report.errors:
             first = result.report.errors[0]
@@ -48,15 +48,14 @@ def check(
     raise typer.Exit(EXIT_WARNINGS if any(result.report.findings for result in results) else EXIT_OK)
 
 
-def _write_html_report(files, units, results, target: Path) -> None:
+def _write_html_report(results, target: Path) -> None:
     """``--report``: the checked meshes drawn, one row each, in the order of ``results``."""
-    from ..batch.runner import check_inputs
     from ..io import load_mesh
     from ..io.atomic import write_atomically
     from ..output.report import check_report
     from ..output.serialize import CAUTIONS
     from ..version import __version__
 
-    meshes = [load_mesh(path, unit) for path, unit in check_inputs([str(path) for path in files], units)]
+    meshes = [load_mesh(result.source, result.length_unit) for result in results]
     footer = f"Written by meshprops {__version__} (meshprops check). Open it from disk; it loads nothing from elsewhere."
     write_atomically(str(target), check_report(results, meshes, cautions=CAUTIONS, footer=footer))
