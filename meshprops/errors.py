@@ -141,3 +141,11 @@ class ModelFileError(MeshpropsError, ValueError):
     def __init__(self, source: str, message: str, *, line: int | None = None) -> None:
         self.line = line
         super().__init__((f"line {line}: " if line is not None else "") + message, source=source)
+class MissingExtraError(MeshpropsError, ImportError):
+    """An optional part of meshprops whose libraries are not installed (``extra`` names the
+    pip extra that brings them, ``feature`` what needs it)."""
+
+    def __init__(self, feature: str, extra: str) -> None:
+        self.feature = feature
+        self.extra = extra
+        super().__init__(f'{feature}: install the extra with pip install "meshprops[{extra}]"')

@@ -30,6 +30,7 @@ EXAMPLES = {
     "ModelFileError": lambda: errors.ModelFileError("arm.urdf", "mesh 'meshes/base.stl' not found", line=9),
     "ManifestError": lambda: errors.ManifestError("rover.toml", "body[2].material", "unknown material 'alu'", line=12),
     "SimulatorExportError": lambda: errors.SimulatorExportError("chassis: inertia tensor is not positive definite"),
+    "MissingExtraError": lambda: errors.MissingExtraError("PNG pictures (--png) need matplotlib", "report"),
 }
 
 
