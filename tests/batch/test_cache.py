@@ -1,0 +1,151 @@
+"""The SQLite result cache: hits, misses after content, settings and version changes,
+corrupt files rebuilt (never trusted), and two processes writing at once."""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import multiprocessing
+import sqlite3
+import time
+
+import numpy as np
+import pytest
+
+from meshprops.batch.cache import CacheKey, ResultCache, settings_fingerprint
+
+VERSION = "0.1.0"
+CHECK_MM = settings_fingerprint("check", {"length_unit": "mm"})
+
+
+def _key(content: bytes, settings_key: str = CHECK_MM) -> CacheKey:
+    return CacheKey(hashlib.sha256(content).hexdigest(), settings_key)
+
+
+def _result(name: str) -> str:
+    return json.dumps({"source": name, "valid": True, "volume": 1e-6}, sort_keys=True)
+
+
+def test_hit_returns_the_stored_text(tmp_path):
+    path = tmp_path / "cache.sqlite"
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.get(_key(b"solid a")) is None
+        cache.put(_key(b"solid a"), _result("a.stl"))
+    with ResultCache(path, tool_version=VERSION) as cache:  # a later run
+        assert cache.get(_key(b"solid a")) == _result("a.stl")
+        assert (cache.hits, cache.misses) == (1, 0)
+        journal = sqlite3.connect(path).execute("PRAGMA journal_mode").fetchone()[0]
+    assert journal == "wal"
+
+
+def test_miss_after_a_content_change(tmp_path):
+    with ResultCache(tmp_path / "c.sqlite", tool_version=VERSION) as cache:
+        cache.put(_key(b"solid a\n"), _result("a.stl"))
+        assert cache.get(_key(b"solid a \n")) is None  # one byte more: another hash
+        assert cache.get(_key(b"solid a\n")) == _result("a.stl")
+
+
+def test_miss_after_a_settings_change_and_only_there(tmp_path):
+    in_metres = settings_fingerprint("check", {"length_unit": "m"})
+    with ResultCache(tmp_path / "c.sqlite", tool_version=VERSION) as cache:
+        cache.put(_key(b"a"), _result("a"))
+        assert cache.get(_key(b"a", in_metres)) is None
+        cache.put(_key(b"a", in_metres), _result("a in m"))
+        # the first setting's row is still served: a change invalidates only what it affects
+        assert cache.get_many([_key(b"a"), _key(b"a", in_metres)]) == [_result("a"), _result("a in m")]
+
+
+def test_fingerprint_sees_every_setting_bit_for_bit():
+    base = {"length_unit": "mm", "density": 2700.0, "about": np.array([0.0, 0.0, 0.1])}
+    same = {"about": [0.0, 0.0, 0.1], "density": 2700.0, "length_unit": "mm"}  # order, arrays vs lists
+    assert settings_fingerprint("measure", base) == settings_fingerprint("measure", same)
+    assert settings_fingerprint("measure", base) != settings_fingerprint("check", base)
+    nudged = dict(base, density=np.nextafter(2700.0, 3000.0))  # one unit in the last place
+    assert settings_fingerprint("measure", base) != settings_fingerprint("measure", nudged)
+    assert settings_fingerprint("measure", base) != settings_fingerprint("measure", dict(base, repair=True))
+
+
+def test_another_tool_version_misses(tmp_path):
+    path = tmp_path / "c.sqlite"
+    with ResultCache(path, tool_version="0.1.0") as cache:
+        cache.put(_key(b"a"), _result("a"))
+    with ResultCache(path, tool_version="0.2.0") as cache:
+        assert cache.get(_key(b"a")) is None
+
+
+@pytest.mark.parametrize(
+    "damage",
+    ["not a database", "wrong tables", "torn pages"],
+)
+def test_a_corrupt_file_is_reported_and_rebuilt(tmp_path, capfd, damage):
+    path = tmp_path / "c.sqlite"
+    if damage == "not a database":
+        path.write_bytes(b"this is a text file, not an SQLite database\n" * 100)
+    elif damage == "wrong tables":
+        other = sqlite3.connect(path)
+        other.execute("CREATE TABLE parts (name TEXT)")
+        other.commit()
+        other.close()
+    else:
+        with ResultCache(path, tool_version=VERSION) as cache:
+            cache.put_many((_key(f"part {index}".encode()), _result(str(index)) * 20) for index in range(300))
+        sqlite3.connect(path).execute("PRAGMA wal_checkpoint(TRUNCATE)").close()
+        data = bytearray(path.read_bytes())
+        assert len(data) > 8192
+        data[4096:8192] = b"\xa5" * 4096  # overwrite the second page with garbage
+        path.write_bytes(bytes(data))
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.count() == 0  # rebuilt empty: nothing of the damaged file is trusted
+        cache.put(_key(b"a"), _result("a"))
+        assert cache.get(_key(b"a")) == _result("a")
+    stderr = capfd.readouterr().err.splitlines()
+    assert len(stderr) == 1
+    assert stderr[0].startswith(f"meshprops: warning: {path}: cache is corrupt (")
+    assert stderr[0].endswith("rebuilding it empty")
+
+
+def test_a_damaged_row_is_dropped_not_served(tmp_path, capfd):
+    path = tmp_path / "c.sqlite"
+    with ResultCache(path, tool_version=VERSION) as cache:
+        cache.put(_key(b"a"), _result("a"))
+        cache.put(_key(b"b"), _result("b"))
+    raw = sqlite3.connect(path)
+    raw.execute("UPDATE results SET result_json = replace(result_json, '1e-06', '2e-06')"
+                " WHERE content_hash = ?", (_key(b"a").content_hash,))
+    raw.commit()
+    raw.close()
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.get_many([_key(b"a"), _key(b"b")]) == [None, _result("b")]
+        assert cache.count() == 1
+    assert "1 damaged cache row(s) dropped" in capfd.readouterr().err
+
+
+def _writer(path: str, writer: int, count: int, barrier, spans) -> None:
+    with ResultCache(path, tool_version=VERSION) as cache:
+        barrier.wait()  # both processes start writing at the same moment
+        started = time.time()
+        for index in range(count):  # many small transactions, interleaving with the other writer
+            cache.put(_key(f"{writer}/{index}".encode()), _result(f"{writer}/{index}"))
+            cache.get(_key(f"{1 - writer}/{index}".encode()))
+        spans.put((writer, started, time.time()))
+
+
+def test_two_concurrent_writers_lose_nothing(tmp_path):
+    path = str(tmp_path / "shared.sqlite")
+    ResultCache(path, tool_version=VERSION).close()  # both start on the same existing file
+    context = multiprocessing.get_context("spawn")
+    barrier, spans = context.Barrier(2), context.Queue()
+    writers = [context.Process(target=_writer, args=(path, writer, 400, barrier, spans)) for writer in (0, 1)]
+    for process in writers:
+        process.start()
+    for process in writers:
+        process.join(timeout=120)
+    assert [process.exitcode for process in writers] == [0, 0]
+    (_, start_a, end_a), (_, start_b, end_b) = spans.get(timeout=5), spans.get(timeout=5)
+    assert max(start_a, start_b) < min(end_a, end_b)  # the writes really overlapped in time
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.count() == 800
+        keys = [_key(f"{writer}/{index}".encode()) for writer in (0, 1) for index in range(400)]
+        texts = cache.get_many(keys)
+    assert texts == [_result(f"{writer}/{index}") for writer in (0, 1) for index in range(400)]
+    assert sqlite3.connect(path).execute("PRAGMA integrity_check").fetchone()[0] == "ok"
