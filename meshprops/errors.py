@@ -149,3 +149,18 @@ class MissingExtraError(MeshpropsError, ImportError):
         self.feature = feature
         self.extra = extra
         super().__init__(f'{feature}: install the extra with pip install "meshprops[{extra}]"')
+
+
+class BatchRunError(MeshpropsError, RuntimeError):
+    """A batch run failed as a whole (a worker process died, the cluster cannot be reached),
+    not because of one file."""
+
+
+class UnsentError(MeshpropsError):
+    """Stands in for a file's error that cannot be pickled back from a worker: the same
+    one line and the same exit code (every error here pickles; this keeps a run alive
+    and identical in every backend should one ever not)."""
+
+    def __init__(self, message: str, exit_code: int) -> None:
+        super().__init__(message)
+        self.exit_code = exit_code

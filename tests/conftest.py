@@ -131,3 +131,51 @@ def rotation():
 def part():
     """``(vertices, faces)`` of :func:`asymmetric_part`."""
     return asymmetric_part()
+
+
+# ---------------------------------------------------------------- batch backends
+# The batch tests run once per backend: serial, a local process pool, and a real Dask
+# LocalCluster of two worker processes on 127.0.0.1 (started once per session, stopped at the end).
+
+BATCH_BACKENDS = ("serial", "processes", "dask")
+
+
+@pytest.fixture(scope="session")
+def dask_cluster():
+    """A LocalCluster of two single-thread worker processes on the loopback interface."""
+    distributed = pytest.importorskip("distributed", reason="the dask extra (meshprops[dask]) is not installed")
+    cluster = distributed.LocalCluster(
+        n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1", dashboard_address=None, silence_logs=40
+    )
+    try:
+        yield cluster
+    finally:
+        cluster.close()
+
+
+@pytest.fixture(params=BATCH_BACKENDS)
+def batch_backend(request):
+    """Each backend object in turn, closed after the test (the cluster stays up for the session)."""
+    from meshprops.batch.backends import DaskBackend, ProcessPoolBackend, SerialBackend
+
+    if request.param == "serial":
+        backend = SerialBackend()
+    elif request.param == "processes":
+        backend = ProcessPoolBackend(2)
+    else:
+        backend = DaskBackend(request.getfixturevalue("dask_cluster").scheduler_address)
+    try:
+        yield backend
+    finally:
+        backend.close()
+
+
+@pytest.fixture(params=BATCH_BACKENDS)
+def batch_options(request):
+    """The command-line options that pick each backend in turn: ``--jobs 1``, ``--jobs 2``,
+    ``--scheduler ADDRESS`` of the session's LocalCluster."""
+    if request.param == "serial":
+        return ["--jobs", "1"]
+    if request.param == "processes":
+        return ["--jobs", "2"]
+    return ["--scheduler", request.getfixturevalue("dask_cluster").scheduler_address]

@@ -28,7 +28,7 @@ from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 
-from ..errors import EXIT_USAGE, InputValueError, MeshpropsError
+from ..errors import BatchRunError, InputValueError, MeshpropsError, MissingExtraError, UnsentError
 
 #: Largest number of items in one batch (tasks of ~64 small parts take ~0.3 s, so the
 #: ~1 ms (pool) to ~10 ms (cluster) cost of a task stays a few percent).
@@ -39,18 +39,6 @@ BATCHES_PER_WORKER = 4
 
 #: Batches in flight per worker (submitted, not yet collected).
 IN_FLIGHT_PER_WORKER = 2
-
-
-class BatchRunError(MeshpropsError, RuntimeError):
-    """The run itself failed (a worker process died, the cluster is unreachable), not one file."""
-
-    exit_code = EXIT_USAGE
-
-
-class MissingExtraError(MeshpropsError, ImportError):
-    """An optional part of meshprops is used but its extra is not installed."""
-
-    exit_code = EXIT_USAGE
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -73,24 +61,11 @@ class TaskOutcome:
         return self.error is None
 
 
-class ItemError(MeshpropsError):
-    """Stands in for an item's error whose class does not survive pickling: the same one
-    line and exit code (every meshprops error is meant to pickle; this keeps a run alive
-    and identical in every backend if one does not)."""
-
-    def __init__(self, message: str, exit_code: int) -> None:
-        super().__init__(message)
-        self.exit_code = exit_code
-
-    def __reduce__(self):
-        return (type(self), (self.problem, self.exit_code))
-
-
 def _portable(error: MeshpropsError) -> MeshpropsError:
     try:
         pickle.loads(pickle.dumps(error))
     except Exception:  # noqa: BLE001 - any failure to round-trip means: send a stand-in
-        return ItemError(str(error), error.exit_code)
+        return UnsentError(str(error), error.exit_code)
     return error
 
 
@@ -225,10 +200,7 @@ def import_distributed():
     try:
         import distributed
     except ImportError:
-        raise MissingExtraError(
-            "--scheduler needs Dask's distributed scheduler, which is not installed; "
-            "install the extra: pip install 'meshprops[dask]'"
-        ) from None
+        raise MissingExtraError("--scheduler (Dask's distributed scheduler is not installed)", "dask") from None
     return distributed
 
 

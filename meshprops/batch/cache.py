@@ -20,7 +20,8 @@ Safety:
 - Each row also stores the sha256 of its JSON text, checked on every read: a
   damaged row is dropped (a miss), never served.
 - A file that is not a meshprops cache, or that fails SQLite's own integrity
-  check, is reported as one warning line on stderr and rebuilt empty.
+  check, is reported (one warning, which the command line prints on stderr) and
+  rebuilt empty.
 
 The cache lives beside the client process (SQLite's WAL needs the database on a
 local disk); cluster workers never open it.
@@ -33,8 +34,7 @@ import json
 import math
 import os
 import sqlite3
-import sys
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -103,10 +103,6 @@ def settings_fingerprint(command: str, settings: Mapping[str, object]) -> str:
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
-def _say(message: str) -> None:
-    print(f"meshprops: {message}", file=sys.stderr)
-
-
 class CorruptCacheError(Exception):
     """Internal: the database file cannot be trusted (never escapes :class:`ResultCache`)."""
 
@@ -121,20 +117,27 @@ class ResultCache:
         is not a sound meshprops cache is reported on stderr and rebuilt empty.
     tool_version
         The meshprops version: rows of other versions are never served.
+    on_warning
+        Called with each warning (a corrupt file rebuilt, damaged rows dropped, a
+        database locked too long); by default they are collected in :attr:`warnings`.
 
     Use as a context manager, or call :meth:`close`.
     """
 
-    def __init__(self, path: str | os.PathLike, *, tool_version: str) -> None:
+    def __init__(
+        self, path: str | os.PathLike, *, tool_version: str, on_warning: Callable[[str], None] | None = None
+    ) -> None:
         self.path = Path(path)
         self.tool_version = str(tool_version)
         self.hits = 0
         self.misses = 0
+        self.warnings: list[str] = []
+        self._on_warning = on_warning if on_warning is not None else self.warnings.append
         self._connection: sqlite3.Connection | None = None
         try:
             self._connection = self._open_checked()
         except CorruptCacheError as why:
-            _say(f"warning: {self.path}: cache is corrupt ({why}); rebuilding it empty")
+            self._on_warning(f"{self.path}: cache is corrupt ({why}); rebuilding it empty")
             self._rebuild()
 
     # -- opening, checking, rebuilding -------------------------------------------------------
@@ -244,7 +247,7 @@ class ResultCache:
             self.misses += len(keys)
             return [None] * len(keys)
         if damaged:
-            _say(f"warning: {self.path}: {len(damaged)} damaged cache row(s) dropped; recomputing them")
+            self._on_warning(f"{self.path}: {len(damaged)} damaged cache row(s) dropped; recomputing them")
             self._delete(damaged)
         results = [found.get((key.content_hash, key.settings_key)) for key in keys]
         hits = sum(text is not None for text in results)
@@ -306,9 +309,9 @@ class ResultCache:
         computed, only not stored or served). Anything else means the file cannot be trusted,
         so it is rebuilt."""
         if isinstance(error, sqlite3.OperationalError) and "locked" in str(error):
-            _say(f"warning: {self.path}: cache stayed locked by another run; continuing without it for now")
+            self._on_warning(f"{self.path}: cache stayed locked by another run; continuing without it for now")
             return
-        _say(f"warning: {self.path}: cache is corrupt ({error}); rebuilding it empty")
+        self._on_warning(f"{self.path}: cache is corrupt ({error}); rebuilding it empty")
         self._rebuild()
 
     def close(self) -> None:

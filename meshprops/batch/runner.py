@@ -4,20 +4,28 @@ Each input file becomes one task; each task ends in a :class:`FileOutcome` that 
 result or the :class:`~meshprops.errors.MeshpropsError` that stopped it, in input order, so
 that one unreadable file never hides the others' results. How the outcomes are reported
 (stop at the first error, or report every file) is the caller's choice.
+
+Where the tasks run is a backend (:mod:`meshprops.batch.backends`: serial, a local process
+pool, a Dask cluster); what was computed before can come from the content-hash cache
+(:mod:`meshprops.batch.cache`). Outcomes are the same, in the same order, in every case.
 """
 
 from __future__ import annotations
 
+import json
 import os
-from collections.abc import Callable, Iterable, Sequence
-from dataclasses import dataclass
+from collections.abc import Callable, Iterable, Iterator, Sequence
+from dataclasses import dataclass, fields
 
 from ..errors import MeshpropsError
 from ..io import load_mesh
+from ..io.hashing import file_sha256
+from ..io.loaders import load_mesh_content
 from ..measure.body import BodyMeasurement, measure_mesh
 from ..measure.manifest import load_manifest
 from ..measure.options import MeasureOptions
 from ..validation.checks import CheckResult, check_mesh
+from .cache import CacheKey, ResultCache, settings_fingerprint
 
 #: File extensions taken from a folder (compared case-insensitively).
 MESH_EXTENSIONS = (".stl", ".obj", ".ply")
@@ -56,15 +64,164 @@ def expand_inputs(paths: Iterable[str | os.PathLike]) -> list[str]:
     return files
 
 
-def run_files(items: Sequence, task: Callable, *, label: Callable = str) -> list[FileOutcome]:
-    """Run ``task(item)`` for every item, serially and in order; errors are kept per item."""
+@dataclass(frozen=True, slots=True, eq=False)
+class FileJob:
+    """One mesh file to read: its path, the unit of its coordinates, and (with
+    ``--ship-content``) its bytes, read in this process and sent to the worker.
+
+    Attributes
+    ----------
+    path : the file, as named in results and errors
+    length_unit : unit of the file's coordinates
+    content : the file's bytes, or ``None`` to read ``path`` where the task runs
+    """
+
+    path: str
+    length_unit: str
+    content: bytes | None = None
+
+    def load(self):
+        """The :class:`~meshprops.io.Mesh` (from ``content`` when shipped, else from ``path``)."""
+        if self.content is not None:
+            return load_mesh_content(self.content, self.path, self.length_unit)
+        return load_mesh(self.path, self.length_unit)
+
+
+def with_content(job: FileJob) -> FileJob:
+    """``job`` with the file's bytes attached (the ``prepare`` step of ``--ship-content``).
+
+    A file that cannot be read here is sent by path, so that the worker reports the same
+    one-line error as any other run would.
+    """
+    try:
+        with open(job.path, "rb") as handle:
+            return FileJob(job.path, job.length_unit, handle.read())
+    except OSError:
+        return job
+
+
+def iter_files(
+    items: Sequence,
+    task: Callable,
+    *,
+    label: Callable = str,
+    backend=None,
+    prepare: Callable | None = None,
+) -> Iterator[FileOutcome]:
+    """Run ``task(item)`` for every item and yield each :class:`FileOutcome` in input order,
+    as soon as it and every item before it are done.
+
+    ``backend`` is one of :mod:`meshprops.batch.backends` (``None``: serially, here); with
+    another backend ``task`` and the items must pickle. ``prepare`` runs here on each item
+    just before it is sent (:func:`with_content` ships a file's bytes).
+    """
+    if backend is None:
+        for item in items:
+            try:
+                yield FileOutcome(label(item), result=task(prepare(item) if prepare else item))
+            except MeshpropsError as error:
+                yield FileOutcome(label(item), error=error)
+        return
+    arguments = {"prepare": prepare} if prepare is not None else {}
+    for outcome in backend.run(task, items, **arguments):
+        yield FileOutcome(label(items[outcome.index]), result=outcome.value, error=outcome.error)
+
+
+def run_files(
+    items: Sequence,
+    task: Callable,
+    *,
+    label: Callable = str,
+    backend=None,
+    prepare: Callable | None = None,
+    on_outcome: Callable[[FileOutcome], None] | None = None,
+) -> list[FileOutcome]:
+    """Run ``task(item)`` for every item, in order; errors are kept per item.
+
+    See :func:`iter_files`; ``on_outcome`` is called with each outcome as it arrives (for
+    progress and streamed output).
+    """
     outcomes = []
-    for item in items:
-        try:
-            outcomes.append(FileOutcome(label(item), result=task(item)))
-        except MeshpropsError as error:
-            outcomes.append(FileOutcome(label(item), error=error))
+    for outcome in iter_files(items, task, label=label, backend=backend, prepare=prepare):
+        if on_outcome is not None:
+            on_outcome(outcome)
+        outcomes.append(outcome)
     return outcomes
+
+
+#: Results written to the cache per transaction (a crash loses at most this many).
+CACHE_WRITE_BATCH = 256
+
+
+def run_cached_files(
+    jobs: Sequence[FileJob],
+    task: Callable[[FileJob], dict],
+    *,
+    settings_key: Callable[[FileJob], str],
+    cache: ResultCache | None = None,
+    backend=None,
+    ship_content: bool = False,
+    on_outcome: Callable[[FileOutcome], None] | None = None,
+) -> list[FileOutcome]:
+    """Per-file records (plain JSON data, ``"source"`` first) for every job, in input order,
+    served from ``cache`` where the file's content and the settings are unchanged.
+
+    ``task`` turns one job into its record; it runs only for files the cache does not hold
+    (all of them without a cache). The stored record leaves out ``"source"``, so a copy of a
+    file elsewhere is served under its own path. Errors are never cached. A file that cannot
+    be hashed gets the same one-line error as reading it would give.
+    """
+    keys: list[CacheKey | None] = [None] * len(jobs)
+    early: dict[int, FileOutcome] = {}
+    if cache is not None:
+        for index, job in enumerate(jobs):
+            try:
+                keys[index] = CacheKey(file_sha256(job.path), settings_key(job))
+            except MeshpropsError as error:
+                early[index] = FileOutcome(job.path, error=error)
+        found = cache.get_many([key for key in keys if key is not None])
+        texts = iter(found)
+        for index, key in enumerate(keys):
+            if key is None:
+                continue
+            text = next(texts)
+            if text is not None:
+                early[index] = FileOutcome(jobs[index].path, result={"source": jobs[index].path, **json.loads(text)})
+    misses = [index for index in range(len(jobs)) if index not in early]
+    computed = iter_files(
+        [jobs[index] for index in misses],
+        task,
+        label=lambda job: job.path,
+        backend=backend if len(misses) > 1 else None,
+        prepare=with_content if ship_content else None,
+    )
+    outcomes: list[FileOutcome] = []
+    pending_writes: list[tuple[CacheKey, str]] = []
+    for index in range(len(jobs)):
+        outcome = early.get(index) or next(computed)
+        if cache is not None and index not in early and outcome.ok:
+            stored = {name: value for name, value in outcome.result.items() if name != "source"}
+            pending_writes.append((keys[index], json.dumps(stored, separators=(",", ":"))))
+            if len(pending_writes) >= CACHE_WRITE_BATCH:
+                cache.put_many(pending_writes)
+                pending_writes = []
+        if on_outcome is not None:
+            on_outcome(outcome)
+        outcomes.append(outcome)
+    if cache is not None and pending_writes:
+        cache.put_many(pending_writes)
+    return outcomes
+
+
+def check_settings_key(job: FileJob) -> str:
+    """What a ``check`` result depends on besides the file's content: its length unit."""
+    return settings_fingerprint("check", {"length_unit": job.length_unit})
+
+
+def measure_settings_key(options: MeasureOptions) -> str:
+    """What a ``measure`` result of one file depends on besides its content: every option."""
+    settings = {field.name: getattr(options, field.name) for field in fields(options)}
+    return settings_fingerprint("measure", settings)
 
 
 def raise_first_error(outcomes: Sequence[FileOutcome]) -> list:
@@ -75,8 +232,10 @@ def raise_first_error(outcomes: Sequence[FileOutcome]) -> list:
     return [outcome.result for outcome in outcomes]
 
 
-def check_task(item: tuple[str, str]) -> CheckResult:
-    """Load one ``(path, length_unit)`` and run every check on it."""
+def check_task(item: tuple[str, str] | FileJob) -> CheckResult:
+    """Load one ``(path, length_unit)`` (or :class:`FileJob`) and run every check on it."""
+    if isinstance(item, FileJob):
+        return check_mesh(item.load())
     path, unit = item
     return check_mesh(load_mesh(path, unit))
 
@@ -88,7 +247,7 @@ def check_inputs(paths, length_unit: str = "mm") -> list[tuple[str, str]]:
     body's own length unit (``length_unit`` does not apply to them).
     """
     files: list[tuple[str, str]] = []
-    for path in paths:
+    for path in expand_inputs(paths):
         if str(path).lower().endswith(MANIFEST_EXTENSION):
             files.extend((body.mesh_path, body.length_unit) for body in load_manifest(path).bodies)
         else:
@@ -112,11 +271,12 @@ def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: s
     """
     options = options or MeasureOptions()
     unit = options.length_unit
-    meshes = raise_first_error(run_files([os.fspath(p) for p in paths], lambda path: load_mesh(path, unit)))
+    meshes = raise_first_error(run_files(expand_inputs(paths), lambda path: load_mesh(path, unit)))
     return [measure_mesh(mesh, options, on_invalid=on_invalid) for mesh in meshes]
 
 
 __all__ = [
-    "FileOutcome", "MESH_EXTENSIONS", "check_files", "check_inputs", "check_task",
-    "expand_inputs", "measure_files", "raise_first_error", "run_files",
+    "FileJob", "FileOutcome", "MESH_EXTENSIONS", "check_files", "check_inputs", "check_settings_key", "check_task",
+    "expand_inputs", "iter_files", "measure_files", "measure_settings_key", "raise_first_error", "run_cached_files",
+    "run_files", "with_content",
 ]  # fmt: skip

@@ -10,7 +10,7 @@ import numpy as np
 
 from ..errors import MeshFileError
 from ..units import metres_per
-from .mesh import STL_HEADER_BYTES, Mesh, checked_mesh
+from .mesh import STL_HEADER_BYTES, STL_RECORD, Mesh, checked_mesh
 from .obj import read_obj
 from .ply import read_ply
 from .reading import file_errors
@@ -57,6 +57,30 @@ def load_mesh(path: str | os.PathLike, length_unit: str = "mm") -> Mesh:
         mesh = read_binary_stl(source, size, length_unit, scale)
     else:
         mesh = LOADERS[kind](source, _read_bytes(source), length_unit, scale)
+    return checked_mesh(mesh)
+
+
+def load_mesh_content(data: bytes, source: str, length_unit: str = "mm") -> Mesh:
+    """Read a mesh from a file's bytes, as :func:`load_mesh` reads the file ``source``.
+
+    For batch runs that ship files by content (``--ship-content``): ``source`` names the
+    file in the mesh and in every error, exactly as if it had been read from disk, so a
+    result or an error is the same whichever way the file arrived. A binary STL is a
+    zero-copy view of ``data`` instead of a memory map.
+    """
+    scale = metres_per(length_unit)
+    source = os.fspath(source)
+    if len(data) == 0:
+        raise MeshFileError(source, "file is empty")
+    kind = _detect_format(source, bytes(data[:1024]), len(data))
+    if kind == "stl-binary":
+        count = (len(data) - STL_HEADER_BYTES) // 50
+        if count == 0:
+            raise MeshFileError(source, "binary STL holds no triangles")
+        records = np.frombuffer(data, dtype=STL_RECORD, count=count, offset=STL_HEADER_BYTES)
+        mesh = Mesh(source, "stl-binary", length_unit, scale, soup=records["vertices"])
+    else:
+        mesh = LOADERS[kind](source, bytes(data), length_unit, scale)
     return checked_mesh(mesh)
 
 

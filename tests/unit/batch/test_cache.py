@@ -77,7 +77,7 @@ def test_another_tool_version_misses(tmp_path):
     "damage",
     ["not a database", "wrong tables", "torn pages"],
 )
-def test_a_corrupt_file_is_reported_and_rebuilt(tmp_path, capfd, damage):
+def test_a_corrupt_file_is_reported_and_rebuilt(tmp_path, damage):
     path = tmp_path / "c.sqlite"
     if damage == "not a database":
         path.write_bytes(b"this is a text file, not an SQLite database\n" * 100)
@@ -98,13 +98,14 @@ def test_a_corrupt_file_is_reported_and_rebuilt(tmp_path, capfd, damage):
         assert cache.count() == 0  # rebuilt empty: nothing of the damaged file is trusted
         cache.put(_key(b"a"), _result("a"))
         assert cache.get(_key(b"a")) == _result("a")
-    stderr = capfd.readouterr().err.splitlines()
-    assert len(stderr) == 1
-    assert stderr[0].startswith(f"meshprops: warning: {path}: cache is corrupt (")
-    assert stderr[0].endswith("rebuilding it empty")
+    assert len(cache.warnings) == 1
+    assert cache.warnings[0].startswith(f"{path}: cache is corrupt (")
+    assert cache.warnings[0].endswith("rebuilding it empty")
+    with ResultCache(path, tool_version=VERSION) as cache:  # the rebuilt file is sound
+        assert cache.get(_key(b"a")) == _result("a") and cache.warnings == []
 
 
-def test_a_damaged_row_is_dropped_not_served(tmp_path, capfd):
+def test_a_damaged_row_is_dropped_not_served(tmp_path):
     path = tmp_path / "c.sqlite"
     with ResultCache(path, tool_version=VERSION) as cache:
         cache.put(_key(b"a"), _result("a"))
@@ -117,7 +118,7 @@ def test_a_damaged_row_is_dropped_not_served(tmp_path, capfd):
     with ResultCache(path, tool_version=VERSION) as cache:
         assert cache.get_many([_key(b"a"), _key(b"b")]) == [None, _result("b")]
         assert cache.count() == 1
-    assert "1 damaged cache row(s) dropped" in capfd.readouterr().err
+    assert cache.warnings == [f"{path}: 1 damaged cache row(s) dropped; recomputing them"]
 
 
 def _writer(path: str, writer: int, count: int, barrier, spans) -> None:

@@ -16,14 +16,13 @@ import pytest
 from meshprops.batch import backends
 from meshprops.batch.backends import (
     DaskBackend,
-    MissingExtraError,
     ProcessPoolBackend,
     SerialBackend,
     choose_backend,
     choose_batch_size,
     run_batch,
 )
-from meshprops.errors import MeshpropsError, UnitError
+from meshprops.errors import BatchRunError, MeshpropsError, MissingExtraError, UnitError, UnsentError
 from meshprops.units import LENGTH_UNITS, metres_per
 
 
@@ -138,7 +137,7 @@ def test_missing_dask_extra_is_one_clear_error(monkeypatch):
 def test_unreachable_scheduler_is_one_clear_error():
     pytest.importorskip("distributed")
     # Port 1 on the loopback interface: nothing listens there, the connection is refused.
-    with pytest.raises(backends.BatchRunError, match="cannot reach the Dask scheduler"):
+    with pytest.raises(BatchRunError, match="cannot reach the Dask scheduler"):
         DaskBackend("tcp://127.0.0.1:1", timeout=2)
 
 
@@ -161,7 +160,7 @@ def test_an_error_that_cannot_pickle_comes_back_as_the_same_line_and_code():
         pickle.loads(pickle.dumps(_UnpicklableError("a.stl", "x")))
     ((value, error),) = run_batch(_raise_unpicklable, ["part.stl"])
     assert value is None
-    assert isinstance(error, backends.ItemError)
+    assert isinstance(error, UnsentError)
     assert str(error) == "part.stl: broken on purpose" and error.exit_code == 1
     copy = pickle.loads(pickle.dumps(error))
     assert str(copy) == str(error) and copy.exit_code == 1

@@ -10,11 +10,11 @@ import select
 import subprocess
 import sys
 
-from meshprops.batch.progress import BatchProgress
+from meshprops.output.progress import BatchProgress
 
 _RUN = """
 import sys, time
-from meshprops.batch.progress import BatchProgress
+from meshprops.output.progress import BatchProgress
 with BatchProgress({total}, description="check", show_after={show_after}) as bar:
     for _ in range({total}):
         time.sleep({pause})
