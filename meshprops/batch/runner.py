@@ -192,7 +192,7 @@ def run_cached_files(
         [jobs[index] for index in misses],
         task,
         label=lambda job: job.path,
-        backend=backend if len(misses) > 1 else None,
+        backend=backend,
         prepare=with_content if ship_content else None,
     )
     outcomes: list[FileOutcome] = []

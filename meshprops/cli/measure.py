@@ -12,6 +12,7 @@ from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..measure.options import MeasureOptions
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
 from .app import app, one_line_errors, say, write_report
+from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, emit_line, run_records
 from .options import angular_velocity, manifest_point, parse_vector
 
 SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
@@ -20,7 +21,7 @@ SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
 @app.command()
 @one_line_errors
 def measure(
-    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY), one body each; or one assembly manifest (.toml).", show_default=False)],
+    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY), one body each, or folders of them (recursive); or one assembly manifest (.toml).", show_default=False)],
     units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default mm; a manifest sets its own).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3, applied to every file (default 1000, flagged as assumed).")] = None,
     about: Annotated[Optional[str], typer.Option("--about", help="Also report the inertia about point X,Y,Z (in --units; with a manifest in its length_unit, or a named point).")] = None,
@@ -35,11 +36,18 @@ def measure(
     overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
     repair: Annotated[bool, typer.Option("--repair", help="Apply safe repairs first (reorient winding, flip inside-out shells and voids, drop degenerate and duplicate faces), each reported as a repaired_* warning. Holes are never filled.")] = False,
+    total: Annotated[bool, typer.Option("--total", help="Also report the total of all the files as one rigid body (summed in input order: the same to the last bit in every mode).")] = False,
+    jobs: Jobs = None,
+    scheduler: Scheduler = None,
+    ship_content: ShipContent = False,
+    cache: CachePath = None,
+    json_lines: JsonLines = False,
 ) -> None:
     """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
-    from ..batch.runner import measure_files
+    from ..batch.runner import FileJob, expand_inputs, measure_settings_key, raise_first_error
+    from ..output.records import MeasureRecord, first_error_line, total_record
     from ..output.renderers import choose_format, format_document
-    from ..output.serialize import body_to_dict, document
+    from ..output.serialize import document
 
     chosen = choose_format(json_output, output_format)
     if blocks_only and chosen not in SIMULATOR_FORMATS:
@@ -48,7 +56,16 @@ def measure(
     com_velocity = parse_vector(velocity, "--velocity")
     if com_velocity is not None and omega is None:
         raise InputValueError("--velocity", "to be used with --spin or --rpm", velocity)
+    batch = BatchSettings(jobs, scheduler, ship_content, cache, json_lines)
+    if json_lines and (json_output or output_format not in (None, "json")):
+        raise InputValueError("--json-lines", "no --json or --format with --json-lines (it writes JSON records)", output_format or "--json")
     if any(path.suffix.lower() == ".toml" for path in files):
+        if total:
+            raise InputValueError("--total", "mesh files or folders (an assembly manifest reports its own total)", "a manifest")
+        if not batch.only_local_defaults:
+            raise InputValueError(
+                "--scheduler/--ship-content/--cache/--json-lines", "mesh files or folders (a manifest is measured in this process)", "a manifest"
+            )
         if repair:
             raise InputValueError("--repair", "mesh files (repair is not applied to an assembly manifest)", "a manifest")
         options = MeasureOptions(angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples)
@@ -63,18 +80,30 @@ def measure(
         com_velocity=com_velocity,
         repair=repair,
     )
-    bodies = measure_files([str(path) for path in files], options)
-    doc = document([body_to_dict(body) for body in bodies], input_length_unit=units)
-    text, notes = format_document(doc, chosen, inertial_form=inertial_form)
-    write_report(text, output)
-    for note in notes:
-        say(f"warning: {note}")
-    if any(body.density_assumed for body in bodies):
+    work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
+    settings_key = measure_settings_key(options)
+    collected = [] if json_lines and output is not None else None
+    outcomes = run_records(work, MeasureRecord(options), lambda job: settings_key, batch, description="measure", collected=collected)
+    records = [outcome.result for outcome in outcomes if outcome.ok] if json_lines else raise_first_error(outcomes)
+    summed = total_record(records, options, source=", ".join(str(path) for path in files)) if total and records else None
+    if json_lines:
+        if summed is not None and all(outcome.ok for outcome in outcomes):
+            emit_line(summed, collected)
+        if collected is not None:
+            write_report("".join(collected), output)
+    else:
+        doc = document(records, input_length_unit=units, total=summed)
+        text, notes = format_document(doc, chosen, inertial_form=inertial_form)
+        write_report(text, output)
+        for note in notes:
+            say(f"warning: {note}")
+    if any(record["density_assumed"] for record in records):
         say("no --density given: assumed 1000 kg/m^3 (water); masses and inertias scale with density")
-    invalid = [body for body in bodies if not body.valid]
-    for body in invalid:
-        first = body.validation.errors[0]
-        say(f"{body.source}: invalid mesh: {first.code}: {first.message}")
+    invalid = [record for record in records if not record["valid"]]
+    for record in invalid:
+        say(f"{record['source']}: {first_error_line(record)}")
+    if any(not outcome.ok for outcome in outcomes):
+        raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
     raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
 
 

@@ -186,7 +186,12 @@ def check_to_dict(result) -> dict:
 
 def check_document(results, *, input_length_unit: str) -> dict:
     """The JSON document of ``meshprops check``: one entry per file plus totals."""
-    files = [check_to_dict(result) for result in results]
+    return check_document_of([check_to_dict(result) for result in results], input_length_unit=input_length_unit)
+
+
+def check_document_of(files: Sequence[dict], *, input_length_unit: str) -> dict:
+    """The JSON document of ``meshprops check`` around already-serialized files (``check_to_dict``)."""
+    files = list(files)
     return {
         "schema": CHECK_SCHEMA_NAME,
         "schema_version": CHECK_SCHEMA_VERSION,
@@ -266,9 +271,10 @@ def _item_to_dict(item: "AssemblyItem") -> dict:
     return data
 
 
-def _summed_mesh(bodies: list[dict], length_unit: str) -> dict:
+def summed_mesh(bodies: list[dict], length_unit: str, *, file_format: str = "assembly") -> dict:
+    """The ``mesh`` entry of a total: the bodies' counts added (``None`` where any is unknown)."""
     meshes = [body["mesh"] for body in bodies if body.get("mesh")]
-    summed = {"format": "assembly", "length_unit": length_unit}
+    summed = {"format": file_format, "length_unit": length_unit}
     for key in ("faces", "vertices", "edges", "shells", "voids", "holes"):
         values = [mesh.get(key) for mesh in meshes]
         summed[key] = None if any(v is None for v in values) else int(sum(values))
@@ -282,7 +288,7 @@ def assembly_document(result: "AssemblyResult") -> dict:
     total = body_to_dict(result.total)
     # The same keys as a body: the manifest is the total's source, its mesh the sum of the bodies' meshes.
     total["source"] = manifest.path
-    total["mesh"] = _summed_mesh(bodies, manifest.length_unit)
+    total["mesh"] = summed_mesh(bodies, manifest.length_unit)
     total.update(dict.fromkeys(MESH_BODY_KEYS))
     total["name"] = "total"
     total["kind"] = "total"

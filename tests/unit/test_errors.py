@@ -31,6 +31,8 @@ EXAMPLES = {
     "ManifestError": lambda: errors.ManifestError("rover.toml", "body[2].material", "unknown material 'alu'", line=12),
     "SimulatorExportError": lambda: errors.SimulatorExportError("chassis: inertia tensor is not positive definite"),
     "MissingExtraError": lambda: errors.MissingExtraError("PNG pictures (--png) need matplotlib", "report"),
+    "BatchRunError": lambda: errors.BatchRunError("cannot reach the Dask scheduler", source="tcp://127.0.0.1:8786"),
+    "UnsentError": lambda: errors.UnsentError("part.stl: invalid mesh", 1),
 }
 
 

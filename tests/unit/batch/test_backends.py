@@ -128,7 +128,7 @@ def test_missing_dask_extra_is_one_clear_error(monkeypatch):
         return real_import(name, *args, **kwargs)
 
     monkeypatch.setattr(builtins, "__import__", without_distributed)
-    with pytest.raises(MissingExtraError, match=r"pip install 'meshprops\[dask\]'") as caught:
+    with pytest.raises(MissingExtraError, match=r'pip install "meshprops\[dask\]"') as caught:
         DaskBackend("tcp://127.0.0.1:1")
     assert caught.value.exit_code == 2
     assert pickle.loads(pickle.dumps(caught.value)).args == caught.value.args
