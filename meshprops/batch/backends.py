@@ -40,6 +40,9 @@ BATCHES_PER_WORKER = 4
 #: Batches in flight per worker (submitted, not yet collected).
 IN_FLIGHT_PER_WORKER = 2
 
+#: Seconds to wait for a Dask scheduler to answer before the run fails.
+CONNECT_TIMEOUT_SECONDS = 20.0
+
 
 @dataclass(frozen=True, slots=True, eq=False)
 class TaskOutcome:
@@ -216,8 +219,9 @@ class DaskBackend:
 
     name = "dask"
 
-    def __init__(self, address: str, *, timeout: float = 30.0) -> None:
+    def __init__(self, address: str, *, timeout: float | None = None) -> None:
         distributed = import_distributed()
+        timeout = CONNECT_TIMEOUT_SECONDS if timeout is None else timeout
         self.address = address
         try:
             self._client = distributed.Client(address, timeout=timeout, set_as_default=False)
