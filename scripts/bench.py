@@ -24,6 +24,8 @@ Usage (from the repository root)::
     python scripts/bench.py                  # 1M and 5M triangles, 3 repetitions
     python scripts/bench.py --quick          # smoke run with small files
     python scripts/bench.py --sizes 2M --repeats 5
+    python scripts/bench.py --batch          # batch modes: 2,000 small parts (scripts/batch_bench.py)
+    python scripts/bench.py --batch --quick  # batch smoke run: 200 parts
 """
 
 from __future__ import annotations
@@ -288,7 +290,14 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--regenerate", action="store_true", help="rewrite the STL files even if present")
     parser.add_argument("--no-reference", action="store_true", help="skip the trimesh reference runs")
     parser.add_argument("--no-in-process", action="store_true", help="skip the in-process read/integrate/validate timings")
+    parser.add_argument("--batch", action="store_true", help="instead: parts per second in every batch mode (scripts/batch_bench.py)")
+    parser.add_argument("--parts", type=int, default=2000, help="--batch: number of small parts (default 2000)")
     arguments = parser.parse_args(argv)
+    if arguments.batch:
+        sys.path.insert(0, str(Path(__file__).resolve().parent))
+        import batch_bench
+
+        return batch_bench.main(["--quick"] if arguments.quick else ["--parts", str(arguments.parts), "--data-dir", str(arguments.data_dir)])
     if not (hasattr(os, "wait4") and hasattr(os, "posix_spawnp")):
         print("bench.py needs os.wait4 and os.posix_spawnp (Linux or macOS) to read each child's peak memory", file=sys.stderr)
         return 2

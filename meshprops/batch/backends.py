@@ -137,6 +137,13 @@ def _ordered_windowed(submit, collect, cancel, task, items, prepare, batch_size,
             cancel(future)
 
 
+def available_cores() -> int:
+    """Cores this process may run on (its CPU affinity where the system tells it)."""
+    if hasattr(os, "sched_getaffinity"):
+        return max(1, len(os.sched_getaffinity(0)))
+    return os.cpu_count() or 1
+
+
 def _fork_is_safe() -> bool:
     # fork starts workers in milliseconds and they inherit the imported modules; it is only
     # safe while this process runs no other thread (a forked lock held by another thread
@@ -153,7 +160,7 @@ class ProcessPoolBackend:
     name = "processes"
 
     def __init__(self, jobs: int | None = None) -> None:
-        self.worker_count = int(jobs) if jobs else (os.cpu_count() or 1)
+        self.worker_count = int(jobs) if jobs else available_cores()
         if self.worker_count < 1:
             raise InputValueError("--jobs", "a whole number of workers, at least 1", jobs)
         self._executor: ProcessPoolExecutor | None = None
@@ -282,7 +289,7 @@ def choose_backend(*, jobs: int | None = None, scheduler: str | None = None, ite
         return DaskBackend(scheduler)
     if jobs is not None and jobs < 1:
         raise InputValueError("--jobs", "a whole number of workers, at least 1", jobs)
-    workers = jobs or (os.cpu_count() or 1)
+    workers = jobs or available_cores()
     if workers == 1 or (item_count is not None and item_count <= 1):
         return SerialBackend()
     return ProcessPoolBackend(min(workers, item_count) if item_count else workers)

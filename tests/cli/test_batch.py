@@ -10,6 +10,7 @@ import json
 import shutil
 import sqlite3
 
+import jsonschema
 import numpy as np
 import pytest
 from paths import TESTS
@@ -141,6 +142,8 @@ def test_folder_total_is_the_handbook_value_and_identical_in_every_mode(tmp_path
     np.testing.assert_allclose(total["center_of_mass"], com, rtol=0, atol=1e-15)
     np.testing.assert_allclose(total["inertia_about_com"], inertia, rtol=1e-11, atol=1e-18)
     assert total["parts"] == 3 and total["kind"] == "total" and total["mesh"]["faces"] == 36
+    schema = json.loads((TESTS.parent / "meshprops" / "schema" / "measure.schema.json").read_text())
+    jsonschema.validate(json.loads(stdout), schema)
     # The same to the last bit as a serial run (floats in JSON round-trip exactly).
     assert _run("measure", folder, "--total", "--json", "--density", "7850", "--jobs", "1")[1] == stdout
 
