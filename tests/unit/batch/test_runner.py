@@ -136,3 +136,67 @@ def test_measure_files_gives_one_body_per_file(cube_files):
     # Cube of side 10 mm = 0.01 m at 2000 kg/m^3: m = rho a^3 = 2e-3 kg (definition of density).
     assert [b.properties.mass for b in bodies] == pytest.approx([2e-3, 2e-3], rel=1e-12)
     assert [b.source for b in bodies] == [str(cube_files / "cube.stl"), str(cube_files / "cube.obj")]
+
+
+# ---------------------------------------------------------------------------- backends, shipped bytes, cache
+
+
+def test_run_files_on_every_backend_gives_the_serial_outcomes(batch_backend):
+    items = list(range(23))
+    serial = run_files(items, _fail_on_odd)
+    found = run_files(items, _fail_on_odd, backend=batch_backend)
+    assert [(o.path, o.result, str(o.error) if o.error else None) for o in found] == [
+        (o.path, o.result, str(o.error) if o.error else None) for o in serial
+    ]
+
+
+def test_with_content_ships_the_bytes_and_leaves_unreadable_files_by_path(tmp_path):
+    from meshprops.batch.runner import FileJob, with_content
+
+    path = tmp_path / "cube.stl"
+    write_binary_stl(path, shapes.triangles_of(*shapes.box()))
+    assert with_content(FileJob(str(path), "mm")).content == path.read_bytes()
+    missing = FileJob(str(tmp_path / "gone.stl"), "mm")
+    assert with_content(missing).content is None
+    with pytest.raises(MeshFileError, match="no such file"):
+        missing.load()
+
+
+def _record_of(job):
+    if job.path.endswith("bad.stl"):
+        raise MeshFileError(job.path, "broken on purpose")
+    return {"source": job.path, "bytes": len(job.content) if job.content is not None else os.path.getsize(job.path)}
+
+
+def test_run_cached_files_serves_hits_and_computes_only_misses(tmp_path):
+    from meshprops.batch.cache import ResultCache
+    from meshprops.batch.runner import FileJob, run_cached_files
+
+    paths = []
+    for index in range(4):
+        path = tmp_path / f"part{index}.stl"
+        path.write_bytes(b"x" * (index + 1))
+        paths.append(path)
+    (tmp_path / "bad.stl").write_bytes(b"bad")
+    jobs = [FileJob(str(p), "mm") for p in paths] + [FileJob(str(tmp_path / "bad.stl"), "mm"), FileJob(str(tmp_path / "gone.stl"), "mm")]
+    calls = []
+
+    def counting(job):
+        calls.append(job.path)
+        return _record_of(job)
+
+    with ResultCache(tmp_path / "c.sqlite", tool_version="test") as cache:
+        cold = run_cached_files(jobs, counting, settings_key=lambda job: "k", cache=cache)
+        assert len(calls) == 5  # the missing file fails while hashing, in this process
+        calls.clear()
+        seen = []
+        warm = run_cached_files(jobs, counting, settings_key=lambda job: "k", cache=cache, on_outcome=seen.append)
+        assert calls == [str(tmp_path / "bad.stl")]  # errors are never cached
+        assert [o.result for o in warm] == [o.result for o in cold] and [o.path for o in seen] == [j.path for j in jobs]
+        assert [str(o.error) for o in warm if not o.ok] == [f"{tmp_path}/bad.stl: broken on purpose", f"{tmp_path}/gone.stl: no such file"]
+        # a copy under another name is served under its own name
+        copy = tmp_path / "copy.stl"
+        copy.write_bytes(paths[2].read_bytes())
+        calls.clear()
+        (served,) = run_cached_files([FileJob(str(copy), "mm")], counting, settings_key=lambda job: "k", cache=cache)
+        assert calls == [] and served.result == {"source": str(copy), "bytes": 3}

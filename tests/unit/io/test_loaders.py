@@ -453,3 +453,33 @@ def test_unknown_unit(tmp_path, write_mesh):
     with pytest.raises(UnitError, match="unknown unit 'furlong'; expected one of m, cm, mm, in, ft") as caught:
         load_mesh(path, "furlong")
     assert isinstance(caught.value, ValueError)
+
+
+# ---------------------------------------------------------------------------- shipped bytes (--ship-content)
+
+
+def test_bytes_read_as_the_file_in_every_format(tmp_path, write_mesh, mesh_format, part):
+    from meshprops.io.loaders import load_mesh_content
+
+    path = write_mesh(tmp_path, "bracket", *part, mesh_format)
+    from_file = load_mesh(path, "mm")
+    shipped = load_mesh_content(path.read_bytes(), str(path), "mm")
+    assert (shipped.source, shipped.file_format, shipped.face_count) == (str(path), from_file.file_format, from_file.face_count)
+    # the same triangles, bit for bit, so every result computed from them is the same
+    np.testing.assert_array_equal(np.concatenate(list(shipped.triangle_chunks())), np.concatenate(list(from_file.triangle_chunks())))
+
+
+@pytest.mark.parametrize("damage", ["empty", "truncated", "garbage"])
+def test_bad_bytes_give_the_same_error_naming_the_file(tmp_path, damage):
+    from meshprops.io.loaders import load_mesh_content
+
+    path = tmp_path / "part.stl"
+    writers.write_binary_stl(path, shapes.triangles_of(*shapes.box()))
+    data = path.read_bytes()
+    data = {"empty": b"", "truncated": data[:-7], "garbage": b"\x07" * 90}[damage]
+    path.write_bytes(data)
+    with pytest.raises(MeshFileError) as from_file:
+        load_mesh(path)
+    with pytest.raises(MeshFileError) as shipped:
+        load_mesh_content(data, str(path))
+    assert str(shipped.value) == str(from_file.value) and str(path) in str(shipped.value)
