@@ -135,7 +135,7 @@ def _dask_time(meshprops: list[str], folder: Path) -> float:
         print("  (dask extra not installed: pip install 'meshprops[dask]'; LocalCluster mode skipped)")
         return float("nan")
     with LocalCluster(n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1",
-                      dashboard_address=None, silence_logs=40) as cluster:
+                      dashboard_address=":0", silence_logs=40) as cluster:
         return timed(meshprops + ["check", str(folder), "--json", "--scheduler", cluster.scheduler_address])[0]
 
 

@@ -145,7 +145,7 @@ def dask_cluster():
     """A LocalCluster of two single-thread worker processes on the loopback interface."""
     distributed = pytest.importorskip("distributed", reason="the dask extra (meshprops[dask]) is not installed")
     cluster = distributed.LocalCluster(
-        n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1", dashboard_address=None, silence_logs=40
+        n_workers=2, threads_per_worker=1, processes=True, host="127.0.0.1", dashboard_address=":0", silence_logs=40
     )
     try:
         yield cluster
