@@ -29,6 +29,7 @@ STATUS_CHANGED = "changed"  # measured and compared with its entry
 STATUS_NEW = "new"  # a baseline is in force but has no entry for the file
 STATUS_CHECKED = "checked"  # no baseline in force
 STATUS_INVALID = "invalid"  # failed validation: no numbers
+STATUS_MISSING = "missing"  # recorded in the baseline, no longer on disk (``check --all``)
 
 
 @dataclass(frozen=True, slots=True)
@@ -337,6 +338,7 @@ def run_gate(
     length_unit: str | None = None,
     density: float | None = None,
     map_function=map,
+    missing_entries: bool = False,
 ) -> GateReport:
     """Check ``paths`` (mesh files, in order) against ``config`` and ``baseline``.
 
@@ -346,7 +348,8 @@ def run_gate(
     (``map_function`` maps :func:`measure_for_gate` over ``(path, unit,
     density)`` jobs and may run them in worker processes), then compared with
     its entry and with the rules. The budget is rolled up when the
-    configuration has one.
+    configuration has one. With ``missing_entries`` every baseline entry whose
+    file no longer exists fails (``status`` ``missing``).
 
     Raises
     ------
@@ -375,6 +378,12 @@ def run_gate(
         outcomes.append(
             evaluate_file(path, settings, sha, measured, config=config, baseline=baseline, tolerances=tolerances)
         )
+    if missing_entries and baseline is not None:
+        checked = {baseline.key(path) for path in paths}
+        for key in sorted(baseline.entries):
+            path = os.path.join(baseline.root, *key.split("/"))
+            if key not in checked and not os.path.exists(path):
+                outcomes.append(_missing(baseline, key, path))
     budget = None
     notes: list[str] = []
     if config is not None and config.budget is not None:
@@ -385,6 +394,16 @@ def run_gate(
         tuple(outcomes), budget, config.fail_on if config is not None else "error",
         config.path if config is not None else None, _baseline_file(baseline), tuple(notes),
     )  # fmt: skip
+
+
+def _missing(baseline: Baseline, key: str, path: str) -> FileOutcome:
+    entry = baseline.entries[key]
+    verdict = Verdict(
+        "baseline", "file_present", (1.0, 1.0), 0.0, "1", "fail", source=key,
+        message=f"recorded in the baseline but missing (re-record with `meshprops baseline` if it was removed on purpose)",
+    )  # fmt: skip
+    settings = FileSettings(entry.length_unit, entry.density, False, None, "baseline")
+    return FileOutcome(os.path.relpath(path), key, entry.sha256, STATUS_MISSING, settings, None, None, (verdict,))
 
 
 def _baseline_file(baseline: Baseline | None) -> str | None:
@@ -444,7 +463,11 @@ def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dic
 
     masses = _file_masses(config, baseline, known, from_manifests, [path for *_, path in file_items], map_function)
     items: list[BudgetItem] = []
+    left_out: list[str] = []
     for name, subsystem, maturity, override, path in file_items:
+        if path not in masses:
+            left_out.append(name)
+            continue
         items.append(
             BudgetItem(name, subsystem, maturity, masses[path], growth_allowance_for(maturity, table, override), config.relative(path) or path)
         )
@@ -491,10 +514,16 @@ def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dic
             items.append(
                 BudgetItem(item.name, item.subsystem, item.maturity, item.mass, growth_allowance_for(item.maturity, table, item.growth_allowance), "configuration")
             )
-    return roll_up(
+    rollup = roll_up(
         budget.name, budget.allocation, [(s.name, s.allocation) for s in budget.subsystems], items,
         growth_allowance=table, growth_allowance_source=budget.growth_allowance_source,
     )  # fmt: skip
+    if left_out:
+        from dataclasses import replace
+
+        note = f"left out of the budget, their meshes failed validation: {', '.join(left_out)}"
+        rollup = replace(rollup, notes=rollup.notes + (note,))
+    return rollup
 
 
 def _file_masses(config, baseline, known, from_manifests, paths, map_function) -> dict[str, float]:
@@ -503,9 +532,8 @@ def _file_masses(config, baseline, known, from_manifests, paths, map_function) -
     for path in dict.fromkeys(paths):
         outcome = known.get(os.path.abspath(path))
         if outcome is not None:
-            if outcome.numbers is None:
-                raise InvalidMeshError(path, "budget: the mesh failed validation; it has no mass")
-            masses[path] = outcome.numbers.mass
+            if outcome.numbers is not None:  # an invalid file checked in this run already fails it
+                masses[path] = outcome.numbers.mass
             continue
         settings = settings_for(path, config, from_manifests, length_unit=None, density=None)
         if settings.density_assumed:
