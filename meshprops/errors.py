@@ -164,3 +164,28 @@ class UnsentError(MeshpropsError):
     def __init__(self, message: str, exit_code: int) -> None:
         super().__init__(message)
         self.exit_code = exit_code
+
+
+class ConfigError(MeshpropsError, ValueError):
+    """A gate configuration (``meshprops.toml`` or ``[tool.meshprops]``) with a syntax error,
+    an unknown key or a bad value.
+
+    ``key`` is the dotted path of the offending key (``rule[0].expected_mass``; in a
+    ``pyproject.toml`` it starts with ``tool.meshprops.``), ``line`` its 1-based line
+    in the file (best effort, ``None`` when not found).
+    """
+
+    def __init__(self, config: str, key: str | None, message: str, *, line: int | None = None) -> None:
+        self.config = config
+        self.key = key
+        self.line = line
+        where = f"line {line}: " if line is not None else ""
+        super().__init__(where + (f"{key}: " if key else "") + message, source=config)
+
+
+class BaselineError(MeshpropsError, ValueError):
+    """A baseline file (``meshprops-baseline.json``) that cannot be read or is not a meshprops baseline."""
+
+    def __init__(self, path: str, message: str) -> None:
+        self.path = path
+        super().__init__(message, source=path)

@@ -3,7 +3,7 @@
 Adding a command is one new module here and one name in the import below.
 """
 
-from . import balance, check, fill_inertials, materials, measure, report  # noqa: F401  (importing a command registers it)
+from . import balance, baseline, budget, check, fill_inertials, materials, measure, report  # noqa: F401  (importing a command registers it)
 from .app import app, main
 
 __all__ = ["app", "main"]

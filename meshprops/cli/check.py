@@ -1,26 +1,31 @@
-"""``meshprops check``: every validation check on mesh files or a manifest's meshes.
+"""``meshprops check``: every validation check on mesh files or a manifest's meshes, and the gate:
+the configuration's units, materials and rules, the baseline comparison and the mass budget.
+
+Without a configuration or a baseline in force (and without ``--all``) a check is the plain
+batch run of every check (records, ``--cache``, ``--json-lines``, ``--ship-content``); with one,
+the gate runs, its measuring spread over ``--jobs`` or ``--scheduler`` the same way.
 """
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 from typing import Annotated, Optional
 
 import typer
 
-from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
+from ..errors import EXIT_INVALID, EXIT_OK, EXIT_USAGE, InputValueError
 from .app import app, one_line_errors, say, write_report
 from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, run_records
-
-#: ``meshprops check`` exit code when every file is valid but some finding is a warning.
-EXIT_WARNINGS = 3
 
 
 @app.command()
 @one_line_errors
 def check(
-    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY) or folders of them (recursive) to validate, or assembly manifests (.toml): their meshes.", show_default=False)],
-    units: Annotated[str, typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft.")] = "mm",
+    files: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files (STL, OBJ, PLY) or folders of them (recursive) to check, or assembly manifests (.toml): their meshes.", show_default=False)] = None,
+    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default: the configuration's, else mm).")] = None,
+    density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 for every file (default: the configuration's material or density).")] = None,
+    all_files: Annotated[bool, typer.Option("--all", help="Check every mesh under the current directory (recursively) and every baseline entry: the CI mode.")] = False,
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document instead of a table.")] = False,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
     html_report: Annotated[Optional[Path], typer.Option("--report", help="Also write one HTML page: a row per file with a picture and its verdict.")] = None,
@@ -30,43 +35,101 @@ def check(
     cache: CachePath = None,
     json_lines: JsonLines = False,
 ) -> None:
-    """Validate mesh files with every check (self-intersections included) and list the findings.
+    """Validate mesh files with every check (self-intersections included), apply the gate's
+    rules, compare with the baseline and roll up the mass budget.
 
-    Exit codes: 0 no findings; 3 warnings only; 1 at least one error; 2 usage or unreadable file.
+    Exit codes: 0 passed (warnings printed, allowed unless fail_on = "warning"); 1 an error
+    finding or a rule, baseline or budget violation; 2 usage or unreadable input.
     """
+    from ..gate.runner import load_gate
+    from ..units import LENGTH_UNITS
+
+    if units is not None and units not in LENGTH_UNITS:
+        raise InputValueError("--units", f"one of {', '.join(LENGTH_UNITS)}", units)
+    batch = BatchSettings(jobs, scheduler, ship_content, cache, json_lines)
+    if json_lines and json_output:
+        raise InputValueError("--json/--json-lines", "either --json or --json-lines, not both", "both")
+    given = [str(path) for path in files or []]
+    if not given and not all_files:
+        say("error: give mesh files or folders to check, or --all for every mesh under the current directory")
+        raise typer.Exit(EXIT_USAGE)
+    config, baseline = load_gate()
+    if config is None and baseline is None and not all_files:
+        _plain_check(given, units or "mm", batch, json_output, output, html_report)
+    if ship_content or cache is not None or json_lines:
+        raise InputValueError(
+            "--ship-content/--cache/--json-lines",
+            "none of them while the gate is in force (a meshprops.toml or meshprops-baseline.json, or --all): "
+            "the baseline already skips unchanged files",
+            " ".join(o for o, on in (("--ship-content", ship_content), ("--cache", cache), ("--json-lines", json_lines)) if on),
+        )
+    _gate_check(given, config, baseline, units, density, all_files, batch, json_output, output, html_report)
+
+
+def _plain_check(given, units, batch, json_output, output, html_report) -> None:
+    """Every check on every file through the batch loop; no gate is in force. Exits."""
     from ..batch.runner import FileJob, check_inputs, check_settings_key, raise_first_error
+    from ..output.gate import plain_gate_fields
     from ..output.records import check_record, first_error_line
     from ..output.renderers import to_json
     from ..output.serialize import check_document_of
     from ..output.table import render_check_table
 
-    batch = BatchSettings(jobs, scheduler, ship_content, cache, json_lines)
-    if json_lines and json_output:
-        raise InputValueError("--json/--json-lines", "either --json or --json-lines, not both", "both")
-    work = [FileJob(path, unit) for path, unit in check_inputs([str(path) for path in files], units)]
-    collected = [] if json_lines and output is not None else None
+    work = [FileJob(path, unit) for path, unit in check_inputs(given, units)]
+    collected = [] if batch.json_lines and output is not None else None
     outcomes = run_records(work, check_record, check_settings_key, batch, description="check", collected=collected)
-    if json_lines:
+    if batch.json_lines:
         records = [outcome.result for outcome in outcomes if outcome.ok]
         if collected is not None:
             write_report("".join(collected), output)
     else:
         records = raise_first_error(outcomes)
-        doc = check_document_of(records, input_length_unit=units)
+        doc = plain_gate_fields(check_document_of(records, input_length_unit=units))
         write_report(to_json(doc) if json_output else render_check_table(doc), output)
         if html_report is not None:  # the page draws each mesh: built here, from the files themselves
             from ..batch.runner import check_files
 
-            _write_html_report(check_files([str(path) for path in files], units), html_report)
+            _write_html_report(check_files(given, units), html_report)
     for record in records:
         line = first_error_line(record)
         if line is not None:
             say(f"{record['source']}: {line}")
     if any(not outcome.ok for outcome in outcomes):
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
-    if any(not record["valid"] for record in records):
-        raise typer.Exit(EXIT_INVALID)
-    raise typer.Exit(EXIT_WARNINGS if any(record["findings"] for record in records) else EXIT_OK)
+    # warnings inform without blocking: a pre-commit hook refuses on any non-zero code
+    raise typer.Exit(EXIT_INVALID if any(not record["valid"] for record in records) else EXIT_OK)
+
+
+def _gate_check(given, config, baseline, units, density, all_files, batch, json_output, output, html_report) -> None:
+    """The gate: configuration, baseline and budget. Exits."""
+    from ..gate.runner import backend_map, gate_inputs, iter_mesh_files, run_gate
+    from ..output.gate import gate_check_document, render_gate_text
+    from ..output.renderers import to_json
+
+    paths, overrides = gate_inputs(given)
+    if all_files:
+        paths = list(dict.fromkeys(paths + [os.path.relpath(p) for p in iter_mesh_files(os.getcwd())]))
+    report = run_gate(
+        paths, config=config, baseline=baseline, length_unit=units, density=density, settings=overrides,
+        missing_entries=all_files, map_function=backend_map(jobs=batch.jobs, scheduler=batch.scheduler),
+    )  # fmt: skip
+    doc = gate_check_document(report, input_length_unit=units or "mm")
+    write_report(to_json(doc) if json_output else render_gate_text(doc), output)
+    if html_report is not None:
+        _write_gate_html_report(report, html_report)
+    for outcome in report.files:
+        if outcome.errors:
+            first = outcome.errors[0]
+            say(f"{outcome.source}: invalid mesh: {first.code}: {first.message}")
+        for verdict in outcome.failed_verdicts:
+            say(f"{outcome.source}: {verdict.rule}: {verdict.message}")
+    if report.budget is not None:
+        for verdict in report.budget.verdicts:
+            if verdict.failed:
+                say(f"budget: {verdict.message}")
+    if not report.passed and not report.error_count and not report.failed_verdicts:
+        say(f"warnings fail the gate (fail_on = \"warning\" in {report.config_path})")
+    raise typer.Exit(report.exit_code)
 
 
 def _write_html_report(results, target: Path) -> None:
@@ -80,3 +143,19 @@ def _write_html_report(results, target: Path) -> None:
     meshes = [load_mesh(result.source, result.length_unit) for result in results]
     footer = f"Written by meshprops {__version__} (meshprops check). Open it from disk; it loads nothing from elsewhere."
     write_atomically(str(target), check_report(results, meshes, cautions=CAUTIONS, footer=footer))
+
+
+def _write_gate_html_report(report, target: Path) -> None:
+    """``--report`` of a gate run: a file the gate skipped as unchanged is read and checked here,
+    since drawing needs it; a baseline entry whose file is missing has no row."""
+    from ..io import load_mesh
+    from ..validation.checks import check_mesh
+
+    results = []
+    for outcome in report.files:
+        if outcome.status == "missing":
+            continue
+        results.append(
+            outcome.measured if outcome.measured is not None else check_mesh(load_mesh(outcome.source, outcome.settings.length_unit))
+        )
+    _write_html_report(results, target)

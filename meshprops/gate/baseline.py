@@ -1,6 +1,7 @@
 """The recorded baseline (``meshprops-baseline.json``) and comparisons against it.
 
-For every recorded mesh the baseline keeps the SHA-256 of the file's bytes, the
+For every recorded mesh the baseline keeps the SHA-256 of the file's bytes
+(:func:`meshprops.io.hashing.file_sha256`, written ``sha256:<hex>``), the
 settings it was measured with (length unit, density) and its mass properties
 (SI). A later check of a file whose bytes and settings are unchanged needs no
 measurement at all; a changed file is measured and compared with its entry
@@ -17,7 +18,7 @@ parts gives the same bytes and a diff shows only what changed::
       "units": {"length": "m", "volume": "m^3", "mass": "kg", "density": "kg/m^3", "inertia": "kg*m^2"},
       "files": {
         "exports/chassis_plate.stl": {
-          "sha256": "9f2c...",
+          "content_hash": "sha256:9f2c...",
           "length_unit": "mm",
           "density": 2700.0,
           "volume": 6.37e-05,
@@ -36,24 +37,24 @@ fraction of.
 
 from __future__ import annotations
 
-import hashlib
 import json
 import math
 import os
-import tempfile
+import re
 from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
 
-from ..errors import EXIT_USAGE, MeshpropsError
+from ..errors import BaselineError
+from ..io.atomic import write_atomically
 from .rules import FAIL, PASS, RULE_BASELINE, Verdict
 
 BASELINE_FILE_NAME = "meshprops-baseline.json"
 BASELINE_FORMAT = "meshprops.baseline"
 BASELINE_FORMAT_VERSION = 1
 BASELINE_UNITS = {"length": "m", "volume": "m^3", "mass": "kg", "density": "kg/m^3", "inertia": "kg*m^2"}
-ENTRY_KEYS = ("sha256", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments")
+ENTRY_KEYS = ("content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments")
 
 
 @dataclass(frozen=True, slots=True)
@@ -75,19 +76,7 @@ class Tolerances:
 
 
 DEFAULT_TOLERANCES = Tolerances()
-
-
-class BaselineError(MeshpropsError, ValueError):
-    """A baseline file that cannot be read or is not a meshprops baseline."""
-
-    exit_code = EXIT_USAGE
-
-    def __init__(self, path: str, message: str) -> None:
-        self.path = path
-        super().__init__(message, source=path)
-
-    def __reduce__(self):
-        return (BaselineError, (self.path, self.problem))
+_CONTENT_HASH = re.compile(r"^sha256:[0-9a-f]{64}\Z")
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -97,7 +86,7 @@ class BaselineEntry:
     Attributes
     ----------
     path : relative to the baseline's folder, POSIX form
-    sha256 : hex digest of the file's bytes
+    content_hash : ``sha256:<hex>`` of the file's bytes
     length_unit : unit its coordinates were read in
     density : kg/m³ used for ``mass``
     volume : m³
@@ -108,7 +97,7 @@ class BaselineEntry:
     """
 
     path: str
-    sha256: str
+    content_hash: str
     length_unit: str
     density: float
     volume: float
@@ -117,9 +106,9 @@ class BaselineEntry:
     size: float
     principal_moments: np.ndarray
 
-    def same_input(self, sha256: str, length_unit: str, density: float) -> bool:
+    def same_input(self, content_hash: str, length_unit: str, density: float) -> bool:
         """Whether a file with these bytes and settings would measure exactly as recorded."""
-        return self.sha256 == sha256 and self.length_unit == length_unit and self.density == float(density)
+        return self.content_hash == content_hash and self.length_unit == length_unit and self.density == float(density)
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -143,18 +132,6 @@ class Baseline:
         return Baseline(self.root, merged)
 
 
-def file_sha256(path: str | os.PathLike) -> str:
-    """SHA-256 hex digest of a file's bytes, read in 1 MiB blocks.
-
-    Stands in for ``meshprops.io.hashing.file_sha256`` until the package split.
-    """
-    digest = hashlib.sha256()
-    with open(path, "rb") as handle:
-        for block in iter(lambda: handle.read(1 << 20), b""):
-            digest.update(block)
-    return digest.hexdigest()
-
-
 def empty_baseline(root: str | os.PathLike) -> Baseline:
     return Baseline(os.path.abspath(os.fspath(root)), {})
 
@@ -162,7 +139,7 @@ def empty_baseline(root: str | os.PathLike) -> Baseline:
 def entry_to_dict(entry: BaselineEntry) -> dict:
     """One entry as plain JSON data, keys in :data:`ENTRY_KEYS` order."""
     return {
-        "sha256": entry.sha256,
+        "content_hash": entry.content_hash,
         "length_unit": entry.length_unit,
         "density": float(entry.density),
         "volume": float(entry.volume),
@@ -189,25 +166,7 @@ def baseline_to_json(baseline: Baseline) -> str:
 
 def write_baseline(path: str | os.PathLike, baseline: Baseline) -> None:
     """Write ``baseline`` to ``path`` through a temporary file and a rename (never half-written)."""
-    from ..errors import OutputFileError
-
-    path = os.fspath(path)
-    text = baseline_to_json(baseline)
-    directory = os.path.dirname(os.path.abspath(path))
-    try:
-        handle, temporary = tempfile.mkstemp(prefix=".meshprops-baseline-", dir=directory)
-    except OSError as exc:
-        raise OutputFileError(path, exc.strerror or str(exc)) from None
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8") as stream:
-            stream.write(text)
-        os.replace(temporary, path)
-    except BaseException as exc:
-        if os.path.exists(temporary):
-            os.unlink(temporary)
-        if isinstance(exc, OSError) and not isinstance(exc, OutputFileError):
-            raise OutputFileError(path, exc.strerror or str(exc)) from None
-        raise
+    write_atomically(os.fspath(path), baseline_to_json(baseline))
 
 
 def read_baseline(path: str | os.PathLike) -> Baseline:
@@ -266,13 +225,13 @@ def _entry(path: str, name: str, raw) -> BaselineEntry:
             raise bad(key, "3 finite numbers", value)
         return np.array(value, dtype=float)
 
-    sha = raw["sha256"]
-    if not isinstance(sha, str) or len(sha) != 64 or any(c not in "0123456789abcdef" for c in sha):
-        raise bad("sha256", "64 lower-case hex digits", sha)
+    content_hash = raw["content_hash"]
+    if not isinstance(content_hash, str) or not _CONTENT_HASH.match(content_hash):
+        raise bad("content_hash", "'sha256:' and 64 lower-case hex digits", content_hash)
     if not isinstance(raw["length_unit"], str):
         raise bad("length_unit", "a unit name", raw["length_unit"])
     return BaselineEntry(
-        name, sha, raw["length_unit"], number("density"), number("volume"), number("mass"),
+        name, content_hash, raw["length_unit"], number("density"), number("volume"), number("mass"),
         vector("center_of_mass"), number("size"), vector("principal_moments"),
     )  # fmt: skip
 

@@ -84,8 +84,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import EXIT_USAGE, InputValueError, MeshpropsError
+from ..errors import ConfigError, InputValueError
 from ..materials import Material, find_material, user_material
+from ..measure.manifest import _dotted, _find_line, _kind
 from ..units import LENGTH_UNITS, metres_per
 from .baseline import DEFAULT_TOLERANCES, Tolerances
 from .budget import DEFAULT_GROWTH_ALLOWANCE, DEFAULT_GROWTH_ALLOWANCE_SOURCE, MATURITIES
@@ -108,33 +109,6 @@ BUDGET_KEYS = frozenset({"name", "allocation", "growth_allowance", "growth_allow
 SUBSYSTEM_KEYS = frozenset({"name", "allocation"})
 ITEM_KEYS = frozenset({"name", "subsystem", "maturity", "file", "manifest", "body", "mass", "growth_allowance"})
 MATERIAL_KEYS = frozenset({"density", "source"})
-
-
-class ConfigError(MeshpropsError, ValueError):
-    """A gate configuration with a syntax error, an unknown key or a bad value.
-
-    ``key`` is the dotted path of the offending key (``rule[0].expected_mass``),
-    ``line`` its 1-based line in the file (best effort, ``None`` when not found).
-    """
-
-    exit_code = EXIT_USAGE
-
-    def __init__(self, config: str, key: str | None, message: str, *, line: int | None = None) -> None:
-        self.config = config
-        self.key = key
-        self.line = line
-        where = f"line {line}: " if line is not None else ""
-        super().__init__(where + (f"{key}: " if key else "") + message, source=config)
-
-    def __reduce__(self):
-        return (_rebuild_config_error, (self.config, self.key, self.problem, self.line))
-
-
-def _rebuild_config_error(config, key, problem, line):
-    error = ConfigError.__new__(ConfigError)
-    error.config, error.key, error.line = config, key, line
-    MeshpropsError.__init__(error, problem, source=config)
-    return error
 
 
 # ------------------------------------------------------------------------------ the parsed config
@@ -686,69 +660,3 @@ class _Reader:
         if value not in LENGTH_UNITS:
             raise self.fail(key, f"unknown length unit {value!r}; expected one of {', '.join(LENGTH_UNITS)}")
         return value
-
-
-# The three helpers below follow the manifest reader's (meshprops/assembly.py) way of
-# naming a key and finding its line; they move to one shared home after the package split.
-
-
-def _kind(value) -> str:
-    return {bool: "a boolean", int: "an integer", float: "a number", str: "a string", list: "an array", dict: "a table"}.get(
-        type(value), type(value).__name__
-    )
-
-
-def _dotted(key: tuple) -> str:
-    text = ""
-    for part in key:
-        text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else str(part))
-    return text
-
-
-_HEADER = re.compile(r"^\s*(\[\[?)\s*([^\]]+?)\s*\]\]?\s*(#.*)?$")
-_KEY = re.compile(r"^\s*([A-Za-z0-9_\-\.\"' ]+?)\s*=")
-
-
-def _find_line(lines: list[str], key: tuple) -> int | None:
-    """Best-effort 1-based line of ``key`` (e.g. ``("rule", 2, "expected_mass")``) in the TOML text.
-
-    Table headers set the current path (``[[rule]]`` counts array entries), a
-    ``key =`` line completes it; the line of the deepest matching prefix wins.
-    """
-    counters: dict[tuple, int] = {}
-    current: tuple = ()
-    best_line, best_depth = None, 0
-    for number, line in enumerate(lines, start=1):
-        if line.lstrip().startswith("#"):
-            continue
-        header = _HEADER.match(line)
-        if header:
-            parts = tuple(p.strip().strip("\"'") for p in header.group(2).split("."))
-            resolved: tuple = ()
-            for depth, part in enumerate(parts):
-                resolved += (part,)
-                if header.group(1) == "[[" and depth == len(parts) - 1:
-                    count = counters.get(resolved, -1) + 1
-                    counters[resolved] = count
-                    # a new entry forgets the counters of arrays nested in the previous one
-                    for nested in [k for k in counters if len(k) > len(resolved) + 1 and k[: len(resolved)] == resolved]:
-                        del counters[nested]
-                    resolved += (count,)
-                elif resolved in counters:
-                    resolved += (counters[resolved],)
-            current = path = resolved
-        else:
-            found = _KEY.match(line)
-            if not found:
-                continue
-            path = current + tuple(p.strip().strip("\"'") for p in found.group(1).split("."))
-        depth = 0
-        for mine, wanted in zip(path, key):
-            if mine != wanted:
-                break
-            depth += 1
-        if depth == len(path) and depth > best_depth:
-            best_line, best_depth = number, depth
-            if depth == len(key):
-                return number
-    return best_line

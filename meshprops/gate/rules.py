@@ -151,32 +151,3 @@ def apply_rule(rule, *, mass: float, center_of_mass, principal_moments, source: 
                 )
             )  # fmt: skip
     return verdicts
-
-
-def verdict_to_dict(verdict: Verdict) -> dict:
-    """A verdict as plain JSON data (the one serializer of verdicts; SI values)."""
-
-    def plain(value):
-        if value is None:
-            return None
-        if isinstance(value, np.ndarray):
-            return [float(v) for v in value]
-        if isinstance(value, (list, tuple)):
-            return [plain(v) for v in value]
-        return float(value)
-
-    return {
-        "rule": verdict.rule,
-        "quantity": verdict.quantity,
-        "limit": [plain(verdict.limit[0]), plain(verdict.limit[1])],
-        "value": float(verdict.value),
-        "unit": verdict.unit,
-        "verdict": verdict.verdict,
-        "source": verdict.source,
-        "subject": verdict.subject,
-        "old": plain(verdict.old),
-        "new": plain(verdict.new),
-        "change": plain(verdict.change),
-        "key": verdict.key,
-        "message": verdict.message,
-    }

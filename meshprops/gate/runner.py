@@ -13,7 +13,8 @@ from pathlib import Path
 import numpy as np
 
 from ..errors import EXIT_INVALID, EXIT_OK, InvalidMeshError
-from .baseline import DEFAULT_TOLERANCES, Baseline, BaselineEntry, Tolerances, compare_with_entry, file_sha256
+from ..io.hashing import file_sha256
+from .baseline import DEFAULT_TOLERANCES, Baseline, BaselineEntry, Tolerances, compare_with_entry
 from .budget import MEASURED, BudgetItem, BudgetRollup, growth_allowance_for, roll_up
 from .config import ConfigError, GateConfig
 from .rules import Verdict, apply_rule
@@ -69,7 +70,7 @@ class FileOutcome:
 
     source: str
     key: str
-    sha256: str
+    content_hash: str
     status: str
     settings: FileSettings
     measured: Measured | None
@@ -134,7 +135,58 @@ class GateReport:
         return EXIT_OK if self.passed else EXIT_INVALID
 
 
-# ------------------------------------------------------------------------------ settings per file
+# ------------------------------------------------------------------------------ inputs and settings per file
+
+#: Files that stand for the gate itself when pre-commit passes them: they are not meshes.
+GATE_FILE_NAMES = ("meshprops.toml", "pyproject.toml", "meshprops-baseline.json")
+
+
+def load_gate(start: str | None = None):
+    """``(config or None, baseline or None)`` in force for ``start`` (default: the current directory).
+
+    The configuration is found from there upward; the baseline is
+    ``meshprops-baseline.json`` in that folder itself.
+    """
+    from .baseline import BASELINE_FILE_NAME, read_baseline
+    from .config import find_config, load_config
+
+    config_path = find_config(start)
+    config = load_config(config_path) if config_path is not None else None
+    baseline_path = os.path.join(start or os.getcwd(), BASELINE_FILE_NAME)
+    baseline = read_baseline(baseline_path) if os.path.exists(baseline_path) else None
+    return config, baseline
+
+
+def _body_settings(body, manifest_path: str) -> FileSettings:
+    origin = f"manifest {os.path.basename(manifest_path)} body {body.name}"
+    if body.density is None:  # measured_mass sets it from the volume: no per-file density
+        return FileSettings(body.length_unit, ASSUMED_DENSITY, True, None, origin)
+    material = body.material.name if body.material is not None else None
+    return FileSettings(body.length_unit, float(body.density), False, material, origin)
+
+
+def gate_inputs(paths) -> tuple[list[str], dict]:
+    """Mesh files to check, in order, each once, and the settings manifests give some of them.
+
+    Folders stand for every mesh below them; an assembly manifest (``.toml``) for the meshes
+    it lists, each read with its body's unit and density; the gate's own files
+    (:data:`GATE_FILE_NAMES`) are left out: their presence is what puts the gate in force.
+    """
+    from ..batch.runner import expand_inputs
+    from ..measure.manifest import load_manifest
+
+    files: list[str] = []
+    settings: dict[str, FileSettings] = {}
+    for path in expand_inputs(paths):
+        if os.path.basename(path) in GATE_FILE_NAMES:
+            continue
+        if path.lower().endswith(".toml"):
+            for body in load_manifest(path).bodies:
+                files.append(body.mesh_path)
+                settings.setdefault(os.path.abspath(body.mesh_path), _body_settings(body, path))
+        else:
+            files.append(path)
+    return list(dict.fromkeys(files)), settings
 
 
 def manifest_settings(config: GateConfig | None) -> dict[str, FileSettings]:
@@ -145,21 +197,9 @@ def manifest_settings(config: GateConfig | None) -> dict[str, FileSettings]:
 
     found: dict[str, FileSettings] = {}
     for group in config.files:
-        if group.manifest is None:
-            continue
-        manifest = load_manifest(group.manifest)
-        for body in manifest.bodies:
-            if body.density is None:  # measured_mass sets it from the volume: not a per-file density
-                continue
-            path = os.path.abspath(body.mesh_path)
-            found.setdefault(
-                path,
-                FileSettings(
-                    body.length_unit, float(body.density), False,
-                    body.material.name if body.material is not None else None,
-                    f"manifest {os.path.basename(group.manifest)} body {body.name}",
-                ),
-            )  # fmt: skip
+        if group.manifest is not None:
+            for body in load_manifest(group.manifest).bodies:
+                found.setdefault(os.path.abspath(body.mesh_path), _body_settings(body, group.manifest))
     return found
 
 
@@ -295,7 +335,7 @@ def _needs_density(config: GateConfig | None, path: str, settings: FileSettings)
 def evaluate_file(
     path: str,
     settings: FileSettings,
-    sha256: str,
+    content_hash: str,
     measured: Measured | None,
     *,
     config: GateConfig | None,
@@ -308,9 +348,9 @@ def evaluate_file(
     if measured is None:
         numbers = PartNumbers.from_entry(entry)
         verdicts = _rule_verdicts(config, path, numbers, path)
-        return FileOutcome(path, key, sha256, STATUS_UNCHANGED, settings, None, numbers, tuple(verdicts))
+        return FileOutcome(path, key, content_hash, STATUS_UNCHANGED, settings, None, numbers, tuple(verdicts))
     if measured.numbers is None:
-        return FileOutcome(path, key, sha256, STATUS_INVALID, settings, measured, None, ())
+        return FileOutcome(path, key, content_hash, STATUS_INVALID, settings, measured, None, ())
     verdicts: list[Verdict] = []
     if entry is not None:
         status = STATUS_CHANGED
@@ -322,12 +362,36 @@ def evaluate_file(
     else:
         status = STATUS_NEW if baseline is not None else STATUS_CHECKED
     verdicts += _rule_verdicts(config, path, measured.numbers, path)
-    return FileOutcome(path, key, sha256, status, settings, measured, measured.numbers, tuple(verdicts))
+    return FileOutcome(path, key, content_hash, status, settings, measured, measured.numbers, tuple(verdicts))
 
 
 def _measure_job(job: tuple[str, str, float]) -> Measured:
     path, unit, density = job
     return measure_for_gate(path, unit, density)
+
+
+def backend_map(*, jobs: int | None = None, scheduler: str | None = None):
+    """A map for :func:`run_gate` that spreads its measuring over the batch backends
+    (:func:`meshprops.batch.backends.choose_backend`: ``jobs`` local processes, all cores when
+    ``None``; or an existing Dask cluster at ``scheduler``); in order, first error raised."""
+
+    def mapped(task, items) -> list:
+        from ..batch.backends import choose_backend
+        from ..batch.runner import raise_first_error, run_files
+
+        items = list(items)
+        with choose_backend(jobs=jobs, scheduler=scheduler, item_count=len(items)) as backend:
+            return raise_first_error(run_files(items, task, label=lambda job: job[0], backend=backend))
+
+    return mapped
+
+
+def serial_map(task, jobs) -> list:
+    """Run ``task`` over ``jobs`` through the batch loop (:func:`meshprops.batch.runner.run_files`),
+    in order; the first error (in input order) is raised again."""
+    from ..batch.runner import raise_first_error, run_files
+
+    return raise_first_error(run_files(list(jobs), task, label=lambda job: job[0]))
 
 
 def run_gate(
@@ -337,7 +401,8 @@ def run_gate(
     baseline: Baseline | None,
     length_unit: str | None = None,
     density: float | None = None,
-    map_function=map,
+    settings: dict | None = None,
+    map_function=None,
     missing_entries: bool = False,
 ) -> GateReport:
     """Check ``paths`` (mesh files, in order) against ``config`` and ``baseline``.
@@ -348,7 +413,9 @@ def run_gate(
     (``map_function`` maps :func:`measure_for_gate` over ``(path, unit,
     density)`` jobs and may run them in worker processes), then compared with
     its entry and with the rules. The budget is rolled up when the
-    configuration has one. With ``missing_entries`` every baseline entry whose
+    configuration has one. ``settings`` (absolute path -> :class:`FileSettings`,
+    from :func:`gate_inputs`) fixes some files' settings, over everything else.
+    With ``missing_entries`` every baseline entry whose
     file no longer exists fails (``status`` ``missing``).
 
     Raises
@@ -362,21 +429,25 @@ def run_gate(
     tolerances = config.tolerances if config is not None else DEFAULT_TOLERANCES
     from_manifests = manifest_settings(config)
     paths = [os.fspath(p) for p in paths]
+    map_function = map_function or serial_map
+    fixed = settings or {}
     planned = []
     for path in paths:
-        settings = settings_for(path, config, from_manifests, length_unit=length_unit, density=density)
-        _needs_density(config, path, settings)
-        sha = _sha(path)
+        chosen = fixed.get(os.path.abspath(path)) or settings_for(
+            path, config, from_manifests, length_unit=length_unit, density=density
+        )
+        _needs_density(config, path, chosen)
+        content_hash = file_sha256(path)
         entry = baseline.get(path) if baseline is not None else None
-        unchanged = entry is not None and entry.same_input(sha, settings.length_unit, settings.density)
-        planned.append((path, settings, sha, unchanged))
+        unchanged = entry is not None and entry.same_input(content_hash, chosen.length_unit, chosen.density)
+        planned.append((path, chosen, content_hash, unchanged))
     jobs = [(path, s.length_unit, s.density) for path, s, _, unchanged in planned if not unchanged]
-    results = iter(list(map_function(_measure_job, jobs)) if jobs else [])
+    results = iter(map_function(_measure_job, jobs) if jobs else [])
     outcomes = []
-    for path, settings, sha, unchanged in planned:
+    for path, chosen, content_hash, unchanged in planned:
         measured = None if unchanged else next(results)
         outcomes.append(
-            evaluate_file(path, settings, sha, measured, config=config, baseline=baseline, tolerances=tolerances)
+            evaluate_file(path, chosen, content_hash, measured, config=config, baseline=baseline, tolerances=tolerances)
         )
     if missing_entries and baseline is not None:
         checked = {baseline.key(path) for path in paths}
@@ -403,26 +474,13 @@ def _missing(baseline: Baseline, key: str, path: str) -> FileOutcome:
         message=f"recorded in the baseline but missing (re-record with `meshprops baseline` if it was removed on purpose)",
     )  # fmt: skip
     settings = FileSettings(entry.length_unit, entry.density, False, None, "baseline")
-    return FileOutcome(os.path.relpath(path), key, entry.sha256, STATUS_MISSING, settings, None, None, (verdict,))
+    return FileOutcome(os.path.relpath(path), key, entry.content_hash, STATUS_MISSING, settings, None, None, (verdict,))
 
 
 def _baseline_file(baseline: Baseline | None) -> str | None:
     from .baseline import BASELINE_FILE_NAME
 
     return None if baseline is None else os.path.join(baseline.root, BASELINE_FILE_NAME)
-
-
-def _sha(path: str) -> str:
-    from ..errors import MeshFileError
-
-    try:
-        return file_sha256(path)
-    except FileNotFoundError:
-        raise MeshFileError(path, "no such file") from None
-    except IsADirectoryError:
-        raise MeshFileError(path, "is a directory, not a mesh file") from None
-    except OSError as exc:
-        raise MeshFileError(path, f"cannot read: {exc.strerror or exc}") from None
 
 
 # ------------------------------------------------------------------------------ budget
@@ -438,7 +496,7 @@ def covered_files(config: GateConfig) -> list[str]:
     return found
 
 
-def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dict, *, map_function=map) -> BudgetRollup:
+def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dict, *, map_function=None) -> BudgetRollup:
     """Resolve every budget item's basic mass and roll the budget up.
 
     Items come from ``[[budget.item]]`` entries and from the files and manifests of
@@ -447,6 +505,7 @@ def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dic
     settings, or from measuring it now. An item whose mesh fails validation has no
     basic mass: that is a configuration problem the gate reports as an error.
     """
+    map_function = map_function or serial_map
     budget = config.budget
     table = budget.growth_allowance
     explicit_files = {item.file for item in budget.items if item.file is not None}
@@ -539,7 +598,7 @@ def _file_masses(config, baseline, known, from_manifests, paths, map_function) -
         if settings.density_assumed:
             raise ConfigError(config.path, "budget", f"{path} has no declared density or material; a budget item needs one")
         entry = baseline.get(path) if baseline is not None else None
-        if entry is not None and entry.same_input(_sha(path), settings.length_unit, settings.density):
+        if entry is not None and entry.same_input(file_sha256(path), settings.length_unit, settings.density):
             masses[path] = entry.mass
             continue
         jobs.append((path, settings.length_unit, settings.density))
@@ -569,17 +628,21 @@ def iter_mesh_files(root: str):
     return sorted(found)
 
 
-def record(paths, *, config: GateConfig | None, baseline: Baseline, length_unit=None, density=None, map_function=map):
+def record(paths, *, config: GateConfig | None, baseline: Baseline, length_unit=None, density=None, settings=None, map_function=None):
     """Measure ``paths`` and return ``(baseline with their entries, outcomes)``.
 
     A file whose mesh fails validation has no sound numbers to record: raises
     :class:`InvalidMeshError` naming it (nothing is written).
     """
+    map_function = map_function or serial_map
     from_manifests = manifest_settings(config)
+    fixed = settings or {}
     planned = []
     for path in map(os.fspath, paths):
-        settings = settings_for(path, config, from_manifests, length_unit=length_unit, density=density)
-        planned.append((path, settings, _sha(path)))
+        chosen = fixed.get(os.path.abspath(path)) or settings_for(
+            path, config, from_manifests, length_unit=length_unit, density=density
+        )
+        planned.append((path, chosen, file_sha256(path)))
     jobs = [(path, s.length_unit, s.density) for path, s, _ in planned]
     entries = []
     for (path, settings, sha), measured in zip(planned, map_function(_measure_job, jobs) if jobs else []):

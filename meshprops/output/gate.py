@@ -6,7 +6,36 @@ both the JSON and the text, so they can never disagree.
 
 from __future__ import annotations
 
-from ..gate.rules import verdict_to_dict
+import numpy as np
+
+
+def verdict_to_dict(verdict: Verdict) -> dict:
+    """A verdict as plain JSON data (the one serializer of verdicts; SI values)."""
+
+    def plain(value):
+        if value is None:
+            return None
+        if isinstance(value, np.ndarray):
+            return [float(v) for v in value]
+        if isinstance(value, (list, tuple)):
+            return [plain(v) for v in value]
+        return float(value)
+
+    return {
+        "rule": verdict.rule,
+        "quantity": verdict.quantity,
+        "limit": [plain(verdict.limit[0]), plain(verdict.limit[1])],
+        "value": float(verdict.value),
+        "unit": verdict.unit,
+        "verdict": verdict.verdict,
+        "source": verdict.source,
+        "subject": verdict.subject,
+        "old": plain(verdict.old),
+        "new": plain(verdict.new),
+        "change": plain(verdict.change),
+        "key": verdict.key,
+        "message": verdict.message,
+    }
 
 
 def _finding_to_dict(finding) -> dict:
@@ -57,7 +86,7 @@ def file_outcome_to_dict(outcome) -> dict:
         "findings": [_finding_to_dict(f) for f in findings],
         "mesh": _mesh_to_dict(outcome.measured),
         "status": outcome.status,
-        "sha256": outcome.sha256,
+        "content_hash": outcome.content_hash,
         "baseline_key": outcome.key,
         "settings": {
             "length_unit": settings.length_unit,
@@ -242,3 +271,50 @@ def render_gate_text(doc: dict) -> str:
             why = " (fail_on = \"warning\")"
         lines.append(f"gate {verdict}{why}")
     return "\n".join(lines) + "\n"
+
+
+def gate_check_document(report, *, input_length_unit: str) -> dict:
+    """The JSON document of ``meshprops check``: the check document's keys, each file with the
+    gate's keys (``status``, ``rules``, ...), plus ``gate`` and ``budget`` at the top."""
+    from ..units import SI_UNITS
+    from ..version import __version__
+    from .serialize import CHECK_SCHEMA_NAME, CHECK_SCHEMA_VERSION
+
+    return {
+        "schema": CHECK_SCHEMA_NAME,
+        "schema_version": CHECK_SCHEMA_VERSION,
+        "meshprops_version": __version__,
+        "units": dict(SI_UNITS, input_length_unit=input_length_unit),
+        "files": [file_outcome_to_dict(outcome) for outcome in report.files],
+        "summary": gate_summary(report),
+        **gate_fields(report),
+    }
+
+
+def budget_document(rollup, *, config_path: str) -> dict:
+    """The JSON document of ``meshprops budget``."""
+    from ..version import __version__
+
+    return {
+        "schema": "meshprops.budget",
+        "schema_version": 1,
+        "meshprops_version": __version__,
+        "units": {"mass": "kg", "growth_allowance": "fraction (0.05 is 5 %)"},
+        "config": config_path,
+        "budget": budget_to_dict(rollup),
+        "cautions": [_CAUTION],
+    }
+
+
+def plain_gate_fields(doc: dict) -> dict:
+    """A check document made without a gate, with the keys every check document has: each file's
+    ``status`` (``checked``), ``rules`` (none) and ``passed``, and ``gate`` and ``budget`` at the top."""
+    for entry in doc["files"]:
+        entry.setdefault("status", "checked")
+        entry.setdefault("rules", [])
+        entry.setdefault("passed", bool(entry["valid"]))
+    passed = all(entry["valid"] for entry in doc["files"])
+    doc["summary"].update({"unchanged": 0, "changed": 0, "new": 0, "failed_rules": 0, "passed": passed})
+    doc["gate"] = {"config": None, "baseline": None, "fail_on": "error", "passed": passed, "exit_code": 0 if passed else 1, "notes": []}
+    doc["budget"] = None
+    return doc

@@ -15,11 +15,12 @@ from pathlib import Path
 import pytest
 import yaml
 
+from paths import ROOT, TESTS
+
 from meshprops.geometry import shapes
 from meshprops.io import writers
 
-ROOT = Path(__file__).resolve().parent.parent
-MESHES = ROOT / "tests" / "meshes"
+MESHES = TESTS / "meshes"
 
 pytestmark = pytest.mark.skipif(shutil.which("git") is None, reason="git is needed for pre-commit")
 
@@ -32,11 +33,11 @@ subsystem = "structure"
 
 [budget]
 name = "desk_top_rover"
-allocation = 1.0
+allocation = 2.0
 
 [[budget.subsystem]]
 name = "structure"
-allocation = 0.40
+allocation = 1.50
 
 [[budget.subsystem]]
 name = "wiring"
@@ -86,9 +87,11 @@ class Repository:
     def run(self, *command: str) -> subprocess.CompletedProcess:
         return subprocess.run(command, cwd=self.path, env=self.env, capture_output=True, text=True, timeout=120)
 
-    def commit(self, message: str) -> subprocess.CompletedProcess:
+    def commit(self, message: str) -> tuple[int, str]:
+        """Stage everything and commit: (exit code, what git and the hook printed; git sends hook output to stderr)."""
         self.run("git", "add", "-A")
-        return self.run("git", "commit", "-m", message)
+        done = self.run("git", "commit", "-m", message)
+        return done.returncode, done.stdout + done.stderr
 
 
 @pytest.fixture
@@ -114,38 +117,39 @@ def test_the_gate_through_pre_commit(repository):
     repo = repository
     exports = repo.path / "exports"
 
-    done = repo.commit("exports and their baseline")
-    assert done.returncode == 0, done.stdout + done.stderr
-    assert "meshprops" in done.stdout and "Passed" in done.stdout
+    code, said = repo.commit("exports and their baseline")
+    assert code == 0, said
+    assert "meshprops mesh check" in said and "Passed" in said and "2 unchanged" in said
 
     # a part whose only finding is a warning commits, and the warning is printed
     shutil.copy(MESHES / "warnings" / "collapsed_faces__plate-with-collapsed-face.stl", exports / "spacer.stl")
-    done = repo.commit("a spacer with a collapsed face")
-    assert done.returncode == 0, done.stdout + done.stderr
-    assert "collapsed_faces" in done.stdout and "warning" in done.stdout
+    code, said = repo.commit("a spacer with a collapsed face")
+    assert code == 0, said
+    assert "collapsed_faces" in said and "warning" in said and "exports/spacer.stl" in said and "new" in said
 
     # a re-export whose mass changed by 20 % is refused, naming the file and the quantity
     _box(exports / "chassis_plate.stl", (100.0, 60.0, 12.0))
-    refused = repo.commit("thicker chassis plate")
-    assert refused.returncode != 0
-    assert "exports/chassis_plate.stl" in refused.stdout and "mass changed from 0.162 kg to 0.1944 kg" in refused.stdout
+    code, said = repo.commit("thicker chassis plate")
+    assert code != 0 and "Failed" in said
+    assert "exports/chassis_plate.stl: baseline: mass changed from 0.162 kg to 0.1944 kg" in said
 
     # updating the baseline lets it through
     assert repo.run(_meshprops(), "baseline", "exports/chassis_plate.stl").returncode == 0
-    done = repo.commit("thicker chassis plate, baseline updated")
-    assert done.returncode == 0, done.stdout + done.stderr
+    code, said = repo.commit("thicker chassis plate, baseline updated")
+    assert code == 0, said
 
     # an open mesh is refused
     shutil.copy(MESHES / "invalid" / "open_edges__chassis-plate-missing-face.stl", exports / "lid.stl")
-    refused = repo.commit("an open lid")
-    assert refused.returncode != 0 and "open_edges" in refused.stdout and "exports/lid.stl" in refused.stdout
+    code, said = repo.commit("an open lid")
+    assert code != 0 and "exports/lid.stl: invalid mesh: open_edges" in said
     (exports / "lid.stl").unlink()
 
     # a heavy new part drives the structure's margin negative: refused, naming the subsystem
+    # (structure: 0.0108 + 0.1944 + 1.0368 (the spacer) + 0.81 kg, x 1.05 = 2.155 kg > 1.50 kg)
     _box(exports / "ballast.stl", (100.0, 100.0, 30.0))  # 0.81 kg
-    refused = repo.commit("ballast")
-    assert refused.returncode != 0
-    assert "subsystem 'structure'" in refused.stdout and "margin" in refused.stdout
+    code, said = repo.commit("ballast")
+    assert code != 0
+    assert "budget: subsystem 'structure': predicted" in said and "margin -" in said
 
     log = repo.run("git", "log", "--format=%s").stdout.split("\n")
     assert log[:3] == ["thicker chassis plate, baseline updated", "a spacer with a collapsed face", "exports and their baseline"]

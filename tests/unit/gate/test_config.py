@@ -9,7 +9,8 @@ import pytest
 from meshprops.gate import config as gate_config
 from meshprops.gate.baseline import DEFAULT_TOLERANCES
 from meshprops.gate.budget import DEFAULT_GROWTH_ALLOWANCE
-from meshprops.gate.config import ConfigError, find_config, glob_matches, load_config
+from meshprops.errors import ConfigError
+from meshprops.gate.config import find_config, glob_matches, load_config
 
 
 def _documented_example() -> str:

@@ -9,7 +9,8 @@ import numpy as np
 import pytest
 
 from meshprops.gate.config import parse_config
-from meshprops.gate.rules import FAIL, PASS, Verdict, apply_rule, interval_verdict, verdict_to_dict
+from meshprops.gate.rules import FAIL, PASS, Verdict, apply_rule, interval_verdict
+from meshprops.output.gate import verdict_to_dict
 
 A, B, C, RHO = 0.100, 0.060, 0.010, 2700.0  # an aluminium plate 100 x 60 x 10 mm
 MASS = RHO * A * B * C  # 0.162 kg

@@ -1,8 +1,6 @@
 """The baseline file (stable bytes, atomic, strict reader) and comparisons under the default tolerances."""
 
-import hashlib
 import json
-import os
 
 import numpy as np
 import pytest
@@ -15,7 +13,6 @@ from meshprops.gate.baseline import (
     baseline_to_json,
     compare_with_entry,
     empty_baseline,
-    file_sha256,
     read_baseline,
     write_baseline,
 )
@@ -29,22 +26,13 @@ CENTER = np.array([0.05, 0.03, 0.005])
 SIZE = float(np.sqrt(0.1**2 + 0.06**2 + 0.01**2))
 
 
-def _entry(path="exports/plate.stl", sha="0" * 64):
+def _entry(path="exports/plate.stl", sha="sha256:" + "0" * 64):
     return BaselineEntry(path, sha, "mm", 2700.0, VOLUME, MASS, CENTER, SIZE, MOMENTS)
 
 
 def _compare(**changes):
     values = {"volume": VOLUME, "mass": MASS, "center_of_mass": CENTER, "principal_moments": MOMENTS, **changes}
     return {v.quantity: v for v in compare_with_entry(_entry(), **values)}
-
-
-def test_file_sha256_matches_the_published_test_vector(tmp_path):
-    # FIPS 180-2, appendix B.1: SHA-256("abc")
-    (tmp_path / "abc").write_bytes(b"abc")
-    assert file_sha256(tmp_path / "abc") == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
-    big = os.urandom(3 * (1 << 20) + 17)  # crosses the 1 MiB read blocks
-    (tmp_path / "big").write_bytes(big)
-    assert file_sha256(tmp_path / "big") == hashlib.sha256(big).hexdigest()
 
 
 def test_unchanged_part_passes_every_quantity():
@@ -90,13 +78,13 @@ def test_configured_tolerances_apply():
 
 
 def test_the_document_has_stable_bytes_and_key_order(tmp_path):
-    baseline = empty_baseline(tmp_path).updated([_entry("b.stl", "b" * 64), _entry("a/z.obj", "a" * 64)])
+    baseline = empty_baseline(tmp_path).updated([_entry("b.stl", "sha256:" + "b" * 64), _entry("a/z.obj", "sha256:" + "a" * 64)])
     text = baseline_to_json(baseline)
     doc = json.loads(text)
     assert list(doc) == ["format", "format_version", "units", "files"]
     assert list(doc["files"]) == ["a/z.obj", "b.stl"]
     assert list(doc["files"]["b.stl"]) == [
-        "sha256", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments",
+        "content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments",
     ]  # fmt: skip
     path = tmp_path / "meshprops-baseline.json"
     write_baseline(path, baseline)
@@ -108,18 +96,18 @@ def test_the_document_has_stable_bytes_and_key_order(tmp_path):
 
 
 def test_updating_replaces_only_the_named_entries(tmp_path):
-    baseline = empty_baseline(tmp_path).updated([_entry("a.stl", "a" * 64), _entry("b.stl", "b" * 64)])
-    updated = baseline.updated([_entry("b.stl", "c" * 64)])
-    assert updated.entries["a.stl"].sha256 == "a" * 64 and updated.entries["b.stl"].sha256 == "c" * 64
-    assert baseline.entries["b.stl"].sha256 == "b" * 64  # the original is not changed
+    baseline = empty_baseline(tmp_path).updated([_entry("a.stl", "sha256:" + "a" * 64), _entry("b.stl", "sha256:" + "b" * 64)])
+    updated = baseline.updated([_entry("b.stl", "sha256:" + "c" * 64)])
+    assert updated.entries["a.stl"].content_hash == "sha256:" + "a" * 64 and updated.entries["b.stl"].content_hash == "sha256:" + "c" * 64
+    assert baseline.entries["b.stl"].content_hash == "sha256:" + "b" * 64  # the original is not changed
 
 
 def test_same_input_needs_the_same_bytes_unit_and_density():
-    entry = _entry(sha="f" * 64)
-    assert entry.same_input("f" * 64, "mm", 2700)
-    assert not entry.same_input("e" * 64, "mm", 2700)
-    assert not entry.same_input("f" * 64, "in", 2700)
-    assert not entry.same_input("f" * 64, "mm", 2710)
+    entry = _entry(sha="sha256:" + "f" * 64)
+    assert entry.same_input("sha256:" + "f" * 64, "mm", 2700)
+    assert not entry.same_input("sha256:" + "e" * 64, "mm", 2700)
+    assert not entry.same_input("sha256:" + "f" * 64, "in", 2700)
+    assert not entry.same_input("sha256:" + "f" * 64, "mm", 2710)
 
 
 @pytest.mark.parametrize(
@@ -128,7 +116,7 @@ def test_same_input_needs_the_same_bytes_unit_and_density():
         ("{", "line 1: not JSON"),
         ('{"format": "other"}', "not a meshprops baseline"),
         ('{"format": "meshprops.baseline", "format_version": 9, "files": {}}', "format_version: expected 1"),
-        ('{"format": "meshprops.baseline", "format_version": 1, "files": {"a.stl": {"sha256": "x"}}}', "files['a.stl']: missing"),
+        ('{"format": "meshprops.baseline", "format_version": 1, "files": {"a.stl": {"content_hash": "x"}}}', "files['a.stl']: missing"),
     ],
 )
 def test_a_malformed_baseline_is_refused_in_one_line(tmp_path, text, words):
@@ -137,6 +125,15 @@ def test_a_malformed_baseline_is_refused_in_one_line(tmp_path, text, words):
     with pytest.raises(BaselineError, match=words.replace("[", r"\[").replace("]", r"\]")) as caught:
         read_baseline(path)
     assert caught.value.exit_code == 2 and "\n" not in str(caught.value)
+
+
+def test_a_bad_hash_is_refused(tmp_path):
+    doc = json.loads(baseline_to_json(empty_baseline(tmp_path).updated([_entry("a.stl")])))
+    doc["files"]["a.stl"]["content_hash"] = "0" * 64  # no algorithm prefix
+    path = tmp_path / "meshprops-baseline.json"
+    path.write_text(json.dumps(doc))
+    with pytest.raises(BaselineError, match="content_hash: expected 'sha256:'"):
+        read_baseline(path)
 
 
 def test_a_bad_value_names_the_entry_and_key(tmp_path):
