@@ -33,6 +33,8 @@ EXAMPLES = {
     "MissingExtraError": lambda: errors.MissingExtraError("PNG pictures (--png) need matplotlib", "report"),
     "BatchRunError": lambda: errors.BatchRunError("cannot reach the Dask scheduler", source="tcp://127.0.0.1:8786"),
     "UnsentError": lambda: errors.UnsentError("part.stl: invalid mesh", 1),
+    "ConfigError": lambda: errors.ConfigError("meshprops.toml", "rule[0].expected_mass", "expected a mass in kg", line=7),
+    "BaselineError": lambda: errors.BaselineError("meshprops-baseline.json", "not a meshprops baseline"),
 }
 
 
