@@ -1,0 +1,228 @@
+"""``meshprops baseline``, ``meshprops budget`` and the gate inside ``meshprops check``, through the CLI."""
+
+from __future__ import annotations
+
+import json
+import shutil
+
+import jsonschema
+import pytest
+from paths import ROOT, TESTS
+from typer.testing import CliRunner
+
+from meshprops.cli import app
+from meshprops.geometry import shapes
+from meshprops.io import writers
+
+runner = CliRunner()
+SCHEMAS = ROOT / "meshprops" / "schema"
+CHECK_SCHEMA = json.loads((SCHEMAS / "check.schema.json").read_text())
+BUDGET_SCHEMA = json.loads((SCHEMAS / "budget.schema.json").read_text())
+BASELINE_SCHEMA = json.loads((SCHEMAS / "baseline.schema.json").read_text())
+WARNING_PART = TESTS / "meshes" / "warnings" / "collapsed_faces__plate-with-collapsed-face.stl"
+OPEN_PART = TESTS / "meshes" / "invalid" / "open_edges__chassis-plate-missing-face.stl"
+
+
+def _box(path, size, unit_scale=1.0):
+    path.parent.mkdir(parents=True, exist_ok=True)
+    vertices, faces = shapes.box(size, center=[s / 2 for s in size])
+    writers.write_binary_stl(path, vertices[faces] * unit_scale)
+
+
+@pytest.fixture
+def folder(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    _box(tmp_path / "exports" / "plate.stl", (100.0, 60.0, 10.0))  # 60 cm^3
+    _box(tmp_path / "exports" / "sub" / "bracket.stl", (40.0, 20.0, 5.0))  # 4 cm^3
+    return tmp_path
+
+
+def _check(*args):
+    result = runner.invoke(app, ["check", *args, "--json"])
+    return result, json.loads(result.stdout) if result.stdout.strip().startswith("{") else None
+
+
+def test_baseline_records_every_mesh_below_with_stable_bytes(folder):
+    _box(folder / ".venv" / "ignored.stl", (1.0, 1.0, 1.0))
+    (folder / "notes.txt").write_text("not a mesh")
+    first = runner.invoke(app, ["baseline"])
+    assert first.exit_code == 0, first.output
+    doc = json.loads((folder / "meshprops-baseline.json").read_text())
+    jsonschema.validate(doc, BASELINE_SCHEMA)
+    assert list(doc["files"]) == ["exports/plate.stl", "exports/sub/bracket.stl"]
+    # no configuration: mm and an assumed 1000 kg/m^3, so 60 cm^3 weighs 0.06 kg
+    assert doc["files"]["exports/plate.stl"]["mass"] == pytest.approx(0.06)
+    before = (folder / "meshprops-baseline.json").read_bytes()
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    assert (folder / "meshprops-baseline.json").read_bytes() == before
+
+
+def test_unchanged_files_are_not_read_again(folder, monkeypatch):
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+
+    def refuse(*args):
+        raise AssertionError("an unchanged file was read")
+
+    monkeypatch.setattr("meshprops.gate.runner.measure_for_gate", refuse)
+    result, doc = _check("exports/plate.stl", "exports/sub/bracket.stl")
+    assert result.exit_code == 0, result.output
+    jsonschema.validate(doc, CHECK_SCHEMA)
+    assert [f["status"] for f in doc["files"]] == ["unchanged", "unchanged"]
+    assert doc["files"][0]["mesh"] is None and doc["files"][0]["numbers"]["mass"] == pytest.approx(0.06)
+
+
+def test_a_change_beyond_tolerance_fails_and_rerecording_lets_it_pass(folder):
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    _box(folder / "exports" / "plate.stl", (100.0, 60.0, 10.05))  # +0.5 % mass
+    result, doc = _check("exports/plate.stl")
+    assert result.exit_code == 1
+    assert "exports/plate.stl: baseline: mass changed from 0.06 kg to 0.0603 kg" in result.stderr
+    jsonschema.validate(doc, CHECK_SCHEMA)
+    (entry,) = doc["files"]
+    assert entry["status"] == "changed" and entry["passed"] is False
+    verdicts = {v["quantity"]: v for v in entry["rules"]}
+    assert verdicts["mass"]["verdict"] == "fail" and verdicts["mass"]["limit"] == [-1e-3, 1e-3]
+    assert verdicts["mass"]["old"] == pytest.approx(0.06) and verdicts["mass"]["change"] == pytest.approx(0.0003, rel=1e-4)  # float32 STL coordinates
+    assert verdicts["center_of_mass_shift"]["verdict"] == "pass"  # 0.025 mm of a 117 mm part, limit 0.117 mm
+    assert runner.invoke(app, ["baseline", "exports/plate.stl"]).exit_code == 0
+    result, doc = _check("exports/plate.stl", "exports/sub/bracket.stl")
+    assert result.exit_code == 0 and [f["status"] for f in doc["files"]] == ["unchanged", "unchanged"]
+
+
+def test_a_small_change_within_tolerance_passes_as_changed(folder):
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    _box(folder / "exports" / "plate.stl", (100.0, 60.0, 10.0), unit_scale=1.0 + 1e-5)  # new bytes, 3e-5 more mass
+    result = runner.invoke(app, ["check", "exports/plate.stl"])
+    assert result.exit_code == 0, result.output
+    assert "changed" in result.stdout and "within the baseline's tolerances" in result.stdout
+
+
+def test_a_new_file_is_validated_and_noted(folder):
+    assert runner.invoke(app, ["baseline", "exports/plate.stl"]).exit_code == 0
+    result = runner.invoke(app, ["check", "exports/plate.stl", "exports/sub/bracket.stl"])
+    assert result.exit_code == 0 and "new: not in the baseline" in result.stdout
+    shutil.copy(OPEN_PART, folder / "exports" / "open.stl")
+    result, doc = _check("exports/open.stl")
+    assert result.exit_code == 1 and doc["files"][0]["status"] == "invalid" and doc["files"][0]["numbers"] is None
+
+
+def test_baseline_refuses_an_invalid_mesh_and_writes_nothing(folder):
+    shutil.copy(OPEN_PART, folder / "exports" / "open.stl")
+    result = runner.invoke(app, ["baseline"])
+    assert result.exit_code == 1 and "open.stl" in result.stderr and "open_edges" in result.stderr
+    assert not (folder / "meshprops-baseline.json").exists()
+
+
+def test_units_and_materials_per_glob_and_rules(folder):
+    # one inch cube of PLA next to millimetre aluminium parts: 1 in^3 = 16.387064 cm^3 exactly
+    _box(folder / "exports" / "inch" / "cube.stl", (1.0, 1.0, 1.0))
+    (folder / "meshprops.toml").write_text(
+        "[[files]]\nglob = 'exports/inch/*.stl'\nlength_unit = 'in'\nmaterial = 'pla'\n"
+        "[[files]]\nglob = 'exports/**/*.stl'\nmaterial = 'aluminium_6061'\n"
+        "[[rule]]\nglob = 'exports/plate.stl'\nexpected_mass = 0.160\nmass_tolerance = 0.001\n"
+        "center_of_mass_min = [0, 0, 0]\ncenter_of_mass_max = [100, 60, 10]\n"
+    )
+    result, doc = _check("exports/plate.stl", "exports/inch/cube.stl")
+    assert result.exit_code == 1  # 0.162 kg is outside 0.160 +- 0.001
+    jsonschema.validate(doc, CHECK_SCHEMA)
+    plate, cube = doc["files"]
+    assert cube["numbers"]["mass"] == pytest.approx(16.387064e-6 * 1240)  # PLA 1240 kg/m^3 from the table
+    assert cube["settings"]["length_unit"] == "in" and plate["settings"]["material"] == "aluminium_6061"
+    mass = plate["rules"][0]
+    assert (mass["quantity"], mass["verdict"], mass["limit"]) == ("mass", "fail", [pytest.approx(0.159), pytest.approx(0.161)])
+    assert mass["value"] == pytest.approx(0.162)
+    assert [r["verdict"] for r in plate["rules"][1:]] == ["pass"] * 3
+    assert "rule[0].expected_mass" == mass["key"] and "exports/plate.stl: expected_mass: mass 0.162 kg" in result.stderr
+
+
+def test_fail_on_warning(folder):
+    shutil.copy(WARNING_PART, folder / "exports" / "spacer.stl")
+    assert runner.invoke(app, ["check", "exports/spacer.stl"]).exit_code == 0
+    (folder / "meshprops.toml").write_text("fail_on = 'warning'\n")
+    result = runner.invoke(app, ["check", "exports/spacer.stl"])
+    assert result.exit_code == 1 and "collapsed_faces" in result.stdout and 'fail_on = "warning"' in result.stderr
+
+
+def test_ci_mode_checks_everything_and_notices_a_deleted_part(folder):
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    assert runner.invoke(app, ["check", "--all"]).exit_code == 0
+    (folder / "exports" / "sub" / "bracket.stl").unlink()
+    result, doc = _check("--all")
+    assert result.exit_code == 1 and "exports/sub/bracket.stl" in result.stderr
+    assert [f["status"] for f in doc["files"]] == ["unchanged", "missing"]
+    no_arguments = runner.invoke(app, ["check"])
+    assert no_arguments.exit_code == 2 and "--all" in no_arguments.stderr
+
+
+def test_the_gates_own_files_passed_by_pre_commit_are_not_read_as_meshes(folder):
+    (folder / "meshprops.toml").write_text("fail_on = 'error'\n")
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    result = runner.invoke(app, ["check", "meshprops.toml", "meshprops-baseline.json", "exports/plate.stl"])
+    assert result.exit_code == 0, result.output
+
+
+BUDGET = """
+[[files]]
+glob = "exports/**/*.stl"
+material = "aluminium_6061"
+subsystem = "structure"
+
+[budget]
+name = "desk_top_rover"
+allocation = 0.5
+
+[[budget.subsystem]]
+name = "structure"
+allocation = 0.2
+
+[[budget.subsystem]]
+name = "electronics"
+allocation = 0.1
+
+[[budget.item]]
+name = "controller board"
+subsystem = "electronics"
+maturity = "measured"
+mass = 0.085
+"""
+
+
+def test_budget_table_and_json(folder):
+    (folder / "meshprops.toml").write_text(BUDGET)
+    table = runner.invoke(app, ["budget"])
+    assert table.exit_code == 0, table.output
+    assert "structure" in table.stdout and "controller board" in table.stdout and "S-120" in table.stdout
+    result = runner.invoke(app, ["budget", "--json"])
+    doc = json.loads(result.stdout)
+    jsonschema.validate(doc, BUDGET_SCHEMA)
+    structure, electronics = doc["budget"]["subsystems"]
+    # plate 0.162 kg + bracket 0.0108 kg, calculated (5 %): predicted 0.18144 kg of 0.2 kg
+    assert structure["basic_mass"] == pytest.approx(0.1728) and structure["predicted_mass"] == pytest.approx(0.18144)
+    assert structure["margin"] == pytest.approx(0.01856) and structure["verdict"] == "pass"
+    assert electronics["predicted_mass"] == pytest.approx(0.085)  # measured: no growth
+    assert doc["budget"]["margin"] == pytest.approx(0.5 - 0.18144 - 0.085)
+
+
+def test_a_negative_margin_fails_check_and_budget_naming_the_subsystem(folder):
+    (folder / "meshprops.toml").write_text(BUDGET.replace("allocation = 0.2", "allocation = 0.18"))
+    result = runner.invoke(app, ["budget"])
+    assert result.exit_code == 1 and "subsystem 'structure'" in result.stderr
+    check = runner.invoke(app, ["check", "exports/plate.stl"])
+    assert check.exit_code == 1 and "budget: subsystem 'structure': predicted 0.18144 kg" in check.stderr
+
+
+def test_budget_without_configuration_and_a_bad_configuration(folder):
+    result = runner.invoke(app, ["budget"])
+    assert result.exit_code == 2 and "no [budget]" in result.stderr
+    (folder / "meshprops.toml").write_text("[[rule]]\nglob = '*.stl'\nexpected_mass = 'heavy'\n")
+    result = runner.invoke(app, ["check", "exports/plate.stl"])
+    assert result.exit_code == 2 and "Traceback" not in result.output
+    (line,) = [line for line in result.stderr.splitlines() if line]
+    assert line.endswith("meshprops.toml: line 3: rule[0].expected_mass: expected a mass in kg, got a string 'heavy'")
+
+
+def test_a_mass_rule_needs_a_declared_density(folder):
+    (folder / "meshprops.toml").write_text("[[rule]]\nglob = 'exports/*.stl'\nexpected_mass = 0.06\nmass_tolerance = 0.001\n")
+    result = runner.invoke(app, ["check", "exports/plate.stl"])
+    assert result.exit_code == 2 and "has no declared density" in result.stderr
+    assert runner.invoke(app, ["check", "exports/plate.stl", "--density", "1000"]).exit_code == 0
