@@ -19,6 +19,14 @@ What it does, in one run:
    (``meshprops.physics.moments.integrate_chunks(mesh.triangle_chunks())``) and
    validating it (``meshprops.validate``), with the integration/read ratio.
 
+4. With ``--gate``, instead: the gate of issue 10 on a folder of small parts
+   (``--gate-parts N``, default 500; cylinders of 128 triangles in varied sizes, mm,
+   aluminium by a ``meshprops.toml``): ``meshprops check --all`` cold (no
+   baseline: every part read and validated) against warm (after ``meshprops
+   baseline``: every part unchanged, only hashed), each a fresh process run in the
+   folder, and a single staged part (unchanged, and new) checked alone. Goals:
+   warm <= 1/3 of cold; one small part well under a second.
+
 Usage (from the repository root)::
 
     python scripts/bench.py                  # 1M and 5M triangles, 3 repetitions
@@ -26,6 +34,7 @@ Usage (from the repository root)::
     python scripts/bench.py --sizes 2M --repeats 5
     python scripts/bench.py --batch          # batch modes: 2,000 small parts (scripts/batch_bench.py)
     python scripts/bench.py --batch --quick  # batch smoke run: 200 parts
+    python scripts/bench.py --gate           # 500 small parts, cold and with a warm baseline
 """
 
 from __future__ import annotations
@@ -281,6 +290,74 @@ def agreement(ours: list[dict], reference: list[dict]) -> str:
     )
 
 
+GATE_CONFIG = """\
+[[files]]
+glob = "parts/**/*.stl"
+length_unit = "mm"
+material = "aluminium_6061"
+"""
+
+
+def gate_folder(folder: Path, parts: int) -> list[Path]:
+    """Write ``parts`` closed cylinders (32 sections, 128 triangles) of varied sizes, and the configuration."""
+    (folder / "meshprops.toml").write_text(GATE_CONFIG)
+    paths = []
+    for index in range(parts):
+        radius, height = 5.0 + (index % 17), 3.0 + (index % 23)
+        vertices, faces = shapes.cylinder(radius, height, sections=32)
+        path = folder / "parts" / f"group_{index // 100:02d}" / f"part_{index:04d}.stl"
+        path.parent.mkdir(parents=True, exist_ok=True)
+        write_binary_stl(path, vertices[faces])
+        paths.append(path)
+    return paths
+
+
+def _timed_in(folder: Path, arguments: list[str]) -> tuple[float, int, str]:
+    script = Path(sys.executable).with_name("meshprops")
+    program = [str(script)] if script.exists() else [sys.executable, "-m", "meshprops"]
+    start = time.perf_counter()
+    done = subprocess.run(program + arguments, cwd=folder, capture_output=True, text=True)
+    return time.perf_counter() - start, done.returncode, done.stderr
+
+
+def gate_bench(parts: int, repeats: int) -> None:
+    """Cold against warm ``meshprops check --all`` on ``parts`` small parts, and one part alone."""
+    print(f"gate benchmark: {parts} small parts (128 triangles each), {os.cpu_count()} CPUs, "
+          f"medians of {repeats} fresh processes, run in the parts folder")
+    print(f"load average at start: {load_average()}")
+    with tempfile.TemporaryDirectory(prefix="meshprops-gate-bench-") as scratch:
+        folder = Path(scratch)
+        paths = gate_folder(folder, parts)
+        baseline = folder / "meshprops-baseline.json"
+        cold, warm = [], []
+        for _ in range(repeats):
+            baseline.unlink(missing_ok=True)
+            seconds, code, stderr = _timed_in(folder, ["check", "--all"])
+            assert code == 0, stderr
+            cold.append(seconds)
+            seconds, code, stderr = _timed_in(folder, ["baseline"])
+            assert code == 0, stderr
+            recorded = seconds
+            seconds, code, stderr = _timed_in(folder, ["check", "--all"])
+            assert code == 0, stderr
+            warm.append(seconds)
+        one = str(paths[0].relative_to(folder))
+        single_unchanged = [_timed_in(folder, ["check", one])[0] for _ in range(repeats)]
+        extra = folder / "parts" / "staged.stl"
+        vertices, faces = shapes.cylinder(12.0, 8.0, sections=32)
+        write_binary_stl(extra, vertices[faces])
+        single_new = [_timed_in(folder, ["check", str(extra.relative_to(folder))])[0] for _ in range(repeats)]
+        startup = [_timed_in(folder, ["--help"])[0] for _ in range(repeats)]
+    ratio = median(warm) / median(cold)
+    print(f"  start-up alone (meshprops --help)       {spread(startup)} s")
+    print(f"  check --all, cold (no baseline)         {spread(cold)} s  ({median(cold) / parts * 1e3:.1f} ms a part)")
+    print(f"  baseline (record all, last run)         {recorded:.2f} s")
+    print(f"  check --all, warm (all unchanged)       {spread(warm)} s  ({median(warm) / parts * 1e3:.2f} ms a part)")
+    print(f"  warm / cold                             {ratio:.3f}   goal <= 0.333  {verdict(ratio <= 1 / 3)}")
+    print(f"  one staged part, unchanged              {spread(single_unchanged)} s  goal well under 1 s  {verdict(median(single_unchanged) < 1.0)}")
+    print(f"  one staged part, new (read, validated)  {spread(single_new)} s  goal well under 1 s  {verdict(median(single_new) < 1.0)}")
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0], formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--sizes", default="1M,5M", help="comma-separated triangle counts, e.g. 1M,5M or 250k (default 1M,5M)")
@@ -292,7 +369,12 @@ def main(argv: list[str] | None = None) -> int:
     parser.add_argument("--no-in-process", action="store_true", help="skip the in-process read/integrate/validate timings")
     parser.add_argument("--batch", action="store_true", help="instead: parts per second in every batch mode (scripts/batch_bench.py)")
     parser.add_argument("--parts", type=int, default=2000, help="--batch: number of small parts (default 2000)")
+    parser.add_argument("--gate", action="store_true", help="instead: the gate on small parts, cold against a warm baseline")
+    parser.add_argument("--gate-parts", type=int, default=500, help="--gate: number of small parts (default 500)")
     arguments = parser.parse_args(argv)
+    if arguments.gate:
+        gate_bench(max(1, arguments.gate_parts), 2 if arguments.quick else max(1, arguments.repeats))
+        return 0
     if arguments.batch:
         sys.path.insert(0, str(Path(__file__).resolve().parent))
         import batch_bench
