@@ -540,10 +540,11 @@ def budget_rollup(config: GateConfig, baseline, known: dict, from_manifests: dic
 
             result = measure_assembly(load_manifest(manifest_path), overlap_samples=0)
             masses_by_name = {}
-            for body in result.bodies:
-                if body.properties is None:
-                    raise InvalidMeshError(manifest_path, f"budget: body {body.name!r} failed validation; it has no mass")
-                masses_by_name[body.name] = (body.kind, float(body.properties.mass))
+            for entry in result.items:
+                properties = entry.measurement.properties
+                if properties is None:
+                    raise InvalidMeshError(manifest_path, f"budget: body {entry.name!r} failed validation; it has no mass")
+                masses_by_name[entry.name] = (entry.kind, float(properties.mass))
             manifests[manifest_path] = masses_by_name
         return manifests[manifest_path]
 
