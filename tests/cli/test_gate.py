@@ -226,3 +226,15 @@ def test_a_mass_rule_needs_a_declared_density(folder):
     result = runner.invoke(app, ["check", "exports/plate.stl"])
     assert result.exit_code == 2 and "has no declared density" in result.stderr
     assert runner.invoke(app, ["check", "exports/plate.stl", "--density", "1000"]).exit_code == 0
+
+
+def test_the_published_hook_runs_on_the_gates_own_files_too():
+    import re
+
+    import yaml
+
+    (hook,) = yaml.safe_load((ROOT / ".pre-commit-hooks.yaml").read_text())
+    pattern = re.compile(hook["files"])
+    assert all(pattern.search(n) for n in ("a.stl", "meshprops.toml", "sub/pyproject.toml", "meshprops-baseline.json"))
+    assert not any(pattern.search(n) for n in ("rover.toml", "old-meshprops.toml", "notes.json"))
+    assert hook["verbose"] is True  # warnings are printed even when the commit goes through
