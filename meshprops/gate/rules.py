@@ -86,7 +86,7 @@ def interval_verdict(rule: str, quantity: str, value: float, low, high, unit: st
     value = float(value)
     passed = within(value, low, high)
     words = "within" if passed else "outside"
-    message = f"{quantity} {value:.6g} {unit} is {words} {_interval_text(low, high, unit)}"
+    message = f"{quantity} {value:.6g} {unit} is {words} the limit {_interval_text(low, high, unit)}"
     return Verdict(
         rule, quantity, (low, high), value, unit, PASS if passed else FAIL, source=source, key=key, message=message
     )
