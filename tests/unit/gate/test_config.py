@@ -184,3 +184,9 @@ def test_syntax_error_gives_the_parsers_line(tmp_path):
 def test_missing_file(tmp_path):
     with pytest.raises(ConfigError, match="no such configuration file"):
         load_config(tmp_path / "meshprops.toml")
+
+
+def test_the_readme_shows_the_same_full_example():
+    from paths import ROOT
+
+    assert _documented_example().rstrip() in (ROOT / "README.md").read_text()
