@@ -25,14 +25,17 @@ parts gives the same bytes and a diff shows only what changed::
           "mass": 0.172,
           "center_of_mass": [0.0, 0.0, 0.002],
           "size": 0.215,
-          "principal_moments": [0.00041, 0.00058, 0.00099]
+          "principal_moments": [0.00041, 0.00058, 0.00099],
+          "warnings": []
         }
       }
     }
 
 Paths are relative to the folder holding the baseline, in POSIX form; ``size``
 is the bounding-box diagonal (m), the length the centre-of-mass tolerance is a
-fraction of.
+fraction of; ``warnings`` lists the warning findings the file had when recorded
+(``{code, count, message}``), so that a check that skips the unchanged file still
+reports them (and ``fail_on = "warning"`` still fails it).
 """
 
 from __future__ import annotations
@@ -54,7 +57,9 @@ BASELINE_FILE_NAME = "meshprops-baseline.json"
 BASELINE_FORMAT = "meshprops.baseline"
 BASELINE_FORMAT_VERSION = 1
 BASELINE_UNITS = {"length": "m", "volume": "m^3", "mass": "kg", "density": "kg/m^3", "inertia": "kg*m^2"}
-ENTRY_KEYS = ("content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments")
+ENTRY_KEYS = (
+    "content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments", "warnings",
+)  # fmt: skip
 
 
 @dataclass(frozen=True, slots=True)
@@ -94,6 +99,7 @@ class BaselineEntry:
     center_of_mass : (3,) m, mesh axes
     size : m, bounding-box diagonal
     principal_moments : (3,) kg·m², ascending
+    warnings : the warning findings at recording time, each ``{"code", "count", "message"}``
     """
 
     path: str
@@ -105,6 +111,7 @@ class BaselineEntry:
     center_of_mass: np.ndarray
     size: float
     principal_moments: np.ndarray
+    warnings: tuple = ()
 
     def same_input(self, content_hash: str, length_unit: str, density: float) -> bool:
         """Whether a file with these bytes and settings would measure exactly as recorded."""
@@ -147,6 +154,7 @@ def entry_to_dict(entry: BaselineEntry) -> dict:
         "center_of_mass": [float(v) for v in entry.center_of_mass],
         "size": float(entry.size),
         "principal_moments": [float(v) for v in entry.principal_moments],
+        "warnings": [{"code": w["code"], "count": int(w["count"]), "message": w["message"]} for w in entry.warnings],
     }
 
 
@@ -230,9 +238,17 @@ def _entry(path: str, name: str, raw) -> BaselineEntry:
         raise bad("content_hash", "'sha256:' and 64 lower-case hex digits", content_hash)
     if not isinstance(raw["length_unit"], str):
         raise bad("length_unit", "a unit name", raw["length_unit"])
+    warnings = raw["warnings"]
+    if not isinstance(warnings, list) or not all(
+        isinstance(w, dict) and isinstance(w.get("code"), str) and isinstance(w.get("message"), str)
+        and isinstance(w.get("count"), int) and not isinstance(w.get("count"), bool)
+        for w in warnings
+    ):  # fmt: skip
+        raise bad("warnings", "a list of {code, count, message}", warnings)
     return BaselineEntry(
         name, content_hash, raw["length_unit"], number("density"), number("volume"), number("mass"),
         vector("center_of_mass"), number("size"), vector("principal_moments"),
+        tuple({"code": w["code"], "count": w["count"], "message": w["message"]} for w in warnings),
     )  # fmt: skip
 
 

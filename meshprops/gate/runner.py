@@ -76,10 +76,12 @@ class FileOutcome:
     measured: Measured | None
     numbers: PartNumbers | None
     verdicts: tuple[Verdict, ...]
+    recorded_findings: tuple = ()
 
     @property
     def findings(self) -> tuple:
-        return self.measured.findings if self.measured is not None else ()
+        """This run's findings; for an unchanged file, the warnings its baseline entry recorded."""
+        return self.measured.findings if self.measured is not None else self.recorded_findings
 
     @property
     def valid(self) -> bool:
@@ -346,9 +348,12 @@ def evaluate_file(
     key = baseline.key(path) if baseline is not None else Path(os.path.relpath(os.path.abspath(path))).as_posix()
     entry = baseline.get(path) if baseline is not None else None
     if measured is None:
+        from ..validation.findings import WARNING, Finding
+
         numbers = PartNumbers.from_entry(entry)
         verdicts = _rule_verdicts(config, path, numbers, path)
-        return FileOutcome(path, key, content_hash, STATUS_UNCHANGED, settings, None, numbers, tuple(verdicts))
+        recorded = tuple(Finding(w["code"], WARNING, w["count"], f"as recorded: {w['message']}") for w in entry.warnings)
+        return FileOutcome(path, key, content_hash, STATUS_UNCHANGED, settings, None, numbers, tuple(verdicts), recorded)
     if measured.numbers is None:
         return FileOutcome(path, key, content_hash, STATUS_INVALID, settings, measured, None, ())
     verdicts: list[Verdict] = []
@@ -651,10 +656,13 @@ def record(paths, *, config: GateConfig | None, baseline: Baseline, length_unit=
             codes = ", ".join(sorted({f.code for f in measured.findings if f.severity == "error"}))
             raise InvalidMeshError(path, f"fails validation ({codes}); no baseline recorded", measured.findings)
         numbers = measured.numbers
+        warnings = tuple(
+            {"code": f.code, "count": int(f.count), "message": f.message} for f in measured.findings if f.severity == "warning"
+        )
         entries.append(
             BaselineEntry(
                 baseline.key(path), sha, settings.length_unit, settings.density, numbers.volume, numbers.mass,
-                numbers.center_of_mass, numbers.size, numbers.principal_moments,
+                numbers.center_of_mass, numbers.size, numbers.principal_moments, warnings,
             )
         )  # fmt: skip
     return baseline.updated(entries), entries

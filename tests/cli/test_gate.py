@@ -238,3 +238,16 @@ def test_the_published_hook_runs_on_the_gates_own_files_too():
     assert all(pattern.search(n) for n in ("a.stl", "meshprops.toml", "sub/pyproject.toml", "meshprops-baseline.json"))
     assert not any(pattern.search(n) for n in ("rover.toml", "old-meshprops.toml", "notes.json"))
     assert hook["verbose"] is True  # warnings are printed even when the commit goes through
+
+
+def test_an_unchanged_part_keeps_its_recorded_warnings(folder, monkeypatch):
+    shutil.copy(WARNING_PART, folder / "exports" / "spacer.stl")
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    recorded = json.loads((folder / "meshprops-baseline.json").read_text())["files"]["exports/spacer.stl"]["warnings"]
+    assert [w["code"] for w in recorded] == ["collapsed_faces"]
+    monkeypatch.setattr("meshprops.gate.runner.measure_for_gate", lambda *a: pytest.fail("read again"))
+    result, doc = _check("exports/spacer.stl")
+    assert result.exit_code == 0 and doc["files"][0]["status"] == "unchanged"
+    assert [f["code"] for f in doc["files"][0]["findings"]] == ["collapsed_faces"]
+    (folder / "meshprops.toml").write_text("fail_on = 'warning'\n")
+    assert runner.invoke(app, ["check", "exports/spacer.stl"]).exit_code == 1

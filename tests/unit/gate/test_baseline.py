@@ -27,7 +27,8 @@ SIZE = float(np.sqrt(0.1**2 + 0.06**2 + 0.01**2))
 
 
 def _entry(path="exports/plate.stl", sha="sha256:" + "0" * 64):
-    return BaselineEntry(path, sha, "mm", 2700.0, VOLUME, MASS, CENTER, SIZE, MOMENTS)
+    warnings = ({"code": "collapsed_faces", "count": 1, "message": "1 face has a repeated vertex"},)
+    return BaselineEntry(path, sha, "mm", 2700.0, VOLUME, MASS, CENTER, SIZE, MOMENTS, warnings)
 
 
 def _compare(**changes):
@@ -84,8 +85,9 @@ def test_the_document_has_stable_bytes_and_key_order(tmp_path):
     assert list(doc) == ["format", "format_version", "units", "files"]
     assert list(doc["files"]) == ["a/z.obj", "b.stl"]
     assert list(doc["files"]["b.stl"]) == [
-        "content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments",
+        "content_hash", "length_unit", "density", "volume", "mass", "center_of_mass", "size", "principal_moments", "warnings",
     ]  # fmt: skip
+    assert doc["files"]["b.stl"]["warnings"] == [{"code": "collapsed_faces", "count": 1, "message": "1 face has a repeated vertex"}]
     path = tmp_path / "meshprops-baseline.json"
     write_baseline(path, baseline)
     assert path.read_text() == text
