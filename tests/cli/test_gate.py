@@ -17,8 +17,6 @@ from meshprops.io import writers
 runner = CliRunner()
 SCHEMAS = ROOT / "meshprops" / "schema"
 CHECK_SCHEMA = json.loads((SCHEMAS / "check.schema.json").read_text())
-BUDGET_SCHEMA = json.loads((SCHEMAS / "budget.schema.json").read_text())
-BASELINE_SCHEMA = json.loads((SCHEMAS / "baseline.schema.json").read_text())
 WARNING_PART = TESTS / "meshes" / "warnings" / "collapsed_faces__plate-with-collapsed-face.stl"
 OPEN_PART = TESTS / "meshes" / "invalid" / "open_edges__chassis-plate-missing-face.stl"
 
@@ -40,21 +38,6 @@ def folder(tmp_path, monkeypatch):
 def _check(*args):
     result = runner.invoke(app, ["check", *args, "--json"])
     return result, json.loads(result.stdout) if result.stdout.strip().startswith("{") else None
-
-
-def test_baseline_records_every_mesh_below_with_stable_bytes(folder):
-    _box(folder / ".venv" / "ignored.stl", (1.0, 1.0, 1.0))
-    (folder / "notes.txt").write_text("not a mesh")
-    first = runner.invoke(app, ["baseline"])
-    assert first.exit_code == 0, first.output
-    doc = json.loads((folder / "meshprops-baseline.json").read_text())
-    jsonschema.validate(doc, BASELINE_SCHEMA)
-    assert list(doc["files"]) == ["exports/plate.stl", "exports/sub/bracket.stl"]
-    # no configuration: mm and an assumed 1000 kg/m^3, so 60 cm^3 weighs 0.06 kg
-    assert doc["files"]["exports/plate.stl"]["mass"] == pytest.approx(0.06)
-    before = (folder / "meshprops-baseline.json").read_bytes()
-    assert runner.invoke(app, ["baseline"]).exit_code == 0
-    assert (folder / "meshprops-baseline.json").read_bytes() == before
 
 
 def test_unchanged_files_are_not_read_again(folder, monkeypatch):
@@ -106,13 +89,6 @@ def test_a_new_file_is_validated_and_noted(folder):
     assert result.exit_code == 1 and doc["files"][0]["status"] == "invalid" and doc["files"][0]["numbers"] is None
 
 
-def test_baseline_refuses_an_invalid_mesh_and_writes_nothing(folder):
-    shutil.copy(OPEN_PART, folder / "exports" / "open.stl")
-    result = runner.invoke(app, ["baseline"])
-    assert result.exit_code == 1 and "open.stl" in result.stderr and "open_edges" in result.stderr
-    assert not (folder / "meshprops-baseline.json").exists()
-
-
 def test_units_and_materials_per_glob_and_rules(folder):
     # one inch cube of PLA next to millimetre aluminium parts: 1 in^3 = 16.387064 cm^3 exactly
     _box(folder / "exports" / "inch" / "cube.stl", (1.0, 1.0, 1.0))
@@ -159,66 +135,6 @@ def test_the_gates_own_files_passed_by_pre_commit_are_not_read_as_meshes(folder)
     assert runner.invoke(app, ["baseline"]).exit_code == 0
     result = runner.invoke(app, ["check", "meshprops.toml", "meshprops-baseline.json", "exports/plate.stl"])
     assert result.exit_code == 0, result.output
-
-
-BUDGET = """
-[[files]]
-glob = "exports/**/*.stl"
-material = "aluminium_6061"
-subsystem = "structure"
-
-[budget]
-name = "desk_top_rover"
-allocation = 0.5
-
-[[budget.subsystem]]
-name = "structure"
-allocation = 0.2
-
-[[budget.subsystem]]
-name = "electronics"
-allocation = 0.1
-
-[[budget.item]]
-name = "controller board"
-subsystem = "electronics"
-maturity = "measured"
-mass = 0.085
-"""
-
-
-def test_budget_table_and_json(folder):
-    (folder / "meshprops.toml").write_text(BUDGET)
-    table = runner.invoke(app, ["budget"])
-    assert table.exit_code == 0, table.output
-    assert "structure" in table.stdout and "controller board" in table.stdout and "S-120" in table.stdout
-    result = runner.invoke(app, ["budget", "--json"])
-    doc = json.loads(result.stdout)
-    jsonschema.validate(doc, BUDGET_SCHEMA)
-    structure, electronics = doc["budget"]["subsystems"]
-    # plate 0.162 kg + bracket 0.0108 kg, calculated (5 %): predicted 0.18144 kg of 0.2 kg
-    assert structure["basic_mass"] == pytest.approx(0.1728) and structure["predicted_mass"] == pytest.approx(0.18144)
-    assert structure["margin"] == pytest.approx(0.01856) and structure["verdict"] == "pass"
-    assert electronics["predicted_mass"] == pytest.approx(0.085)  # measured: no growth
-    assert doc["budget"]["margin"] == pytest.approx(0.5 - 0.18144 - 0.085)
-
-
-def test_a_negative_margin_fails_check_and_budget_naming_the_subsystem(folder):
-    (folder / "meshprops.toml").write_text(BUDGET.replace("allocation = 0.2", "allocation = 0.18"))
-    result = runner.invoke(app, ["budget"])
-    assert result.exit_code == 1 and "subsystem 'structure'" in result.stderr
-    check = runner.invoke(app, ["check", "exports/plate.stl"])
-    assert check.exit_code == 1 and "budget: subsystem 'structure': predicted 0.18144 kg" in check.stderr
-
-
-def test_budget_without_configuration_and_a_bad_configuration(folder):
-    result = runner.invoke(app, ["budget"])
-    assert result.exit_code == 2 and "no [budget]" in result.stderr
-    (folder / "meshprops.toml").write_text("[[rule]]\nglob = '*.stl'\nexpected_mass = 'heavy'\n")
-    result = runner.invoke(app, ["check", "exports/plate.stl"])
-    assert result.exit_code == 2 and "Traceback" not in result.output
-    (line,) = [line for line in result.stderr.splitlines() if line]
-    assert line.endswith("meshprops.toml: line 3: rule[0].expected_mass: expected a mass in kg, got a string 'heavy'")
 
 
 def test_a_mass_rule_needs_a_declared_density(folder):
