@@ -15,7 +15,7 @@ import numpy as np
 from ..errors import EXIT_INVALID, EXIT_OK, InvalidMeshError
 from ..io.hashing import file_sha256
 from .baseline import DEFAULT_TOLERANCES, Baseline, BaselineEntry, Tolerances, compare_with_entry
-from .budget import MEASURED, BudgetItem, BudgetRollup, growth_allowance_for, roll_up
+from .budget import BudgetItem, BudgetRollup, growth_allowance_for, roll_up
 from .config import ConfigError, GateConfig
 from .rules import Verdict, apply_rule
 
@@ -476,7 +476,7 @@ def _missing(baseline: Baseline, key: str, path: str) -> FileOutcome:
     entry = baseline.entries[key]
     verdict = Verdict(
         "baseline", "file_present", (1.0, 1.0), 0.0, "1", "fail", source=key,
-        message=f"recorded in the baseline but missing (re-record with `meshprops baseline` if it was removed on purpose)",
+        message="recorded in the baseline but missing (re-record with `meshprops baseline` if it was removed on purpose)",
     )  # fmt: skip
     settings = FileSettings(entry.length_unit, entry.density, False, None, "baseline")
     return FileOutcome(os.path.relpath(path), key, entry.content_hash, STATUS_MISSING, settings, None, None, (verdict,))
@@ -670,5 +670,5 @@ def record(paths, *, config: GateConfig | None, baseline: Baseline, length_unit=
 
 __all__ = [
     "FileOutcome", "FileSettings", "GateReport", "PartNumbers", "run_gate", "record", "iter_mesh_files",
-    "measure_for_gate", "settings_for", "budget_rollup", "MEASURED",
+    "measure_for_gate", "settings_for", "budget_rollup",
 ]  # fmt: skip

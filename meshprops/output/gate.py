@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..gate.rules import Verdict
+
 
 def verdict_to_dict(verdict: Verdict) -> dict:
     """A verdict as plain JSON data (the one serializer of verdicts; SI values)."""
