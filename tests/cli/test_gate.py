@@ -167,3 +167,11 @@ def test_an_unchanged_part_keeps_its_recorded_warnings(folder, monkeypatch):
     assert [f["code"] for f in doc["files"][0]["findings"]] == ["collapsed_faces"]
     (folder / "meshprops.toml").write_text("fail_on = 'warning'\n")
     assert runner.invoke(app, ["check", "exports/spacer.stl"]).exit_code == 1
+
+
+def test_check_report_draws_a_file_the_gate_skipped(folder):
+    assert runner.invoke(app, ["baseline"]).exit_code == 0
+    result = runner.invoke(app, ["check", "exports/plate.stl", "--report", "page.html"])
+    assert result.exit_code == 0, result.output
+    page = (folder / "page.html").read_text()
+    assert "exports/plate.stl" in page and "<svg" in page
