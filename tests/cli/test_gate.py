@@ -175,3 +175,15 @@ def test_check_report_draws_a_file_the_gate_skipped(folder):
     assert result.exit_code == 0, result.output
     page = (folder / "page.html").read_text()
     assert "exports/plate.stl" in page and "<svg" in page
+
+
+def test_the_gate_measures_across_worker_processes_with_the_same_result(folder):
+    _box(folder / "exports" / "third.stl", (30.0, 30.0, 30.0))
+    (folder / "meshprops.toml").write_text("[[files]]\nglob = 'exports/**/*.stl'\nmaterial = 'aluminium_6061'\n")
+    files = ["exports/plate.stl", "exports/sub/bracket.stl", "exports/third.stl"]
+    serial, serial_doc = _check(*files, "--jobs", "1")
+    pooled, pooled_doc = _check(*files, "--jobs", "2")  # a real local process pool of two workers
+    assert serial.exit_code == pooled.exit_code == 0
+    assert pooled_doc["files"] == serial_doc["files"]
+    refused = runner.invoke(app, ["check", *files, "--cache", "results.sqlite"])
+    assert refused.exit_code == 2 and "while the gate is in force" in refused.stderr
