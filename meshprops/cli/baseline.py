@@ -11,6 +11,7 @@ import typer
 
 from ..errors import EXIT_OK, InputValueError
 from .app import app, one_line_errors, say
+from .batching import Jobs
 
 
 @app.command()
@@ -19,6 +20,7 @@ def baseline(
     paths: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files, folders or manifests to record (default: every mesh under the current directory).", show_default=False)] = None,
     units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default: the configuration's, else mm).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 for every file (default: the configuration's material or density).")] = None,
+    jobs: Jobs = None,
 ) -> None:
     """Record each mesh's SHA-256, settings and mass properties in meshprops-baseline.json (current directory).
 
@@ -27,7 +29,7 @@ def baseline(
     Written atomically; a mesh that fails validation is refused and nothing is written (exit 1).
     """
     from ..gate.baseline import BASELINE_FILE_NAME, empty_baseline, write_baseline
-    from ..gate.runner import gate_inputs, iter_mesh_files, load_gate, record
+    from ..gate.runner import backend_map, gate_inputs, iter_mesh_files, load_gate, record
     from ..units import LENGTH_UNITS
 
     if units is not None and units not in LENGTH_UNITS:
@@ -39,7 +41,10 @@ def baseline(
     else:
         files, settings = [os.path.relpath(p) for p in iter_mesh_files(os.getcwd())], {}
         start = empty_baseline(os.getcwd())
-    updated, entries = record(files, config=config, baseline=start, length_unit=units, density=density, settings=settings)
+    updated, entries = record(
+        files, config=config, baseline=start, length_unit=units, density=density, settings=settings,
+        map_function=backend_map(jobs=jobs),
+    )  # fmt: skip
     target = os.path.join(os.getcwd(), BASELINE_FILE_NAME)
     write_baseline(target, updated)
     for entry in entries:
