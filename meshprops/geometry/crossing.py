@@ -1,0 +1,339 @@
+"""Fast self-intersection finder: a uniform grid broad phase and a compiled narrow phase.
+
+Which faces of a mesh pass through each other (:func:`find_crossings`), and how
+much that can change the enclosed volume (:func:`crossing_volume_bound`).
+
+The kernels are compiled by numba on first use and cached on disk
+(``cache=True``: beside the kernel module in ``__pycache__``, or in
+``NUMBA_CACHE_DIR`` / the user's cache folder when that is read-only). The first
+compile takes tens of seconds; it is announced once on stderr and never repeated
+while the cache stands. numba is imported only here, on first use, because its
+import alone costs ~0.4 s.
+
+Broad phase: every face is entered in each cubic cell its bounding box overlaps.
+The cell edge starts at the median face size and grows until the entries are at
+most :data:`ENTRIES_PER_FACE` per face, so a few huge faces cannot blow the grid
+up. Each pair is tested once, in the cell holding the low corner of the overlap of
+the two faces' boxes. A fan of thousands of thin faces around a pole all lands in
+the pole's cell; they share the pole vertex, so each pair costs nine integer
+comparisons before it is dropped.
+
+Narrow phase: Möller's interval test (:func:`meshprops.geometry.crossing_kernels.pair_relation`),
+the same arithmetic as the rtree-based reference :func:`meshprops.checks.triangles_cross`;
+faces sharing a vertex never count as crossing. Coplanar pairs get a strict 2D overlap
+test, reported apart (``coplanar_pairs``), so the faces of a flat subdivided wall are
+not false positives and faces resting on each other (solids stacked face to face) are
+not crossings.
+"""
+
+from __future__ import annotations
+
+import os
+import sys
+import time
+from dataclasses import dataclass
+
+import numpy as np
+
+#: A face is entered in at most about this many grid cells on average (the cell grows until it holds).
+ENTRIES_PER_FACE = 6.0
+#: Relative tolerance of the narrow phase (as in the rtree-based check).
+RELATIVE_TOLERANCE = 1e-10
+
+_announced = False
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class Crossings:
+    """Faces of a mesh that pass through each other.
+
+    Attributes
+    ----------
+    pairs : (P, 2) int64 face numbers (first < second, rows sorted) whose interiors cross along a
+        segment of positive length; faces sharing a vertex are never listed
+    coplanar_pairs : (Q, 2) int64 face numbers lying in one plane whose interiors overlap
+    cell_size : the broad phase's cell edge, in the corners' unit
+    entries : (face, cell) entries of the grid
+    seconds : wall time of the search (compile time excluded), s
+    """
+
+    pairs: np.ndarray
+    coplanar_pairs: np.ndarray
+    cell_size: float
+    entries: int
+    seconds: float
+
+    @property
+    def faces(self) -> np.ndarray:
+        """(K,) int64 sorted face numbers taking part in a crossing pair."""
+        return np.unique(self.pairs)
+
+
+def _kernels():
+    """The compiled kernels, importing numba on first use and announcing a first compile."""
+    global _announced
+    from meshprops.geometry import crossing_kernels as kernels
+
+    if not _announced:
+        _announced = True
+        if not _cache_is_warm(kernels.grid_pairs):
+            where = _cache_folder(kernels.grid_pairs)
+            print(
+                "meshprops: compiling the self-intersection kernels once (about 20-40 s); "
+                f"they are cached in {where} for later runs",
+                file=sys.stderr,
+                flush=True,
+            )
+    return kernels
+
+
+def _cache_folder(dispatcher) -> str:
+    try:
+        return str(dispatcher._cache._cache_path)
+    except AttributeError:  # numba's cache internals moved: say where it would usually be
+        return os.environ.get("NUMBA_CACHE_DIR", "__pycache__ beside meshprops/geometry/crossing_kernels.py")
+
+
+def _cache_is_warm(dispatcher) -> bool:
+    """Whether numba's on-disk cache holds an index for this kernel (best effort)."""
+    try:
+        cache = dispatcher._cache
+        return os.path.exists(os.path.join(cache._cache_path, cache._index_name))
+    except Exception:  # noqa: BLE001 - unknown numba internals: stay quiet rather than guess
+        return True
+
+
+def warm_up() -> None:
+    """Compile (or load from the cache) every kernel on a two-face input."""
+    corners = np.array([[[0.0, 0, 0], [1, 0, 0], [0, 1, 0]], [[0.2, 0.2, -1], [0.2, 0.2, 1], [1, 1, 0]]])
+    find_crossings(corners, np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64))
+    crossing_volume_bound(corners, np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64), np.array([[0, 1]]))
+
+
+def _cell_size(low: np.ndarray, high: np.ndarray, kernels) -> tuple[float, np.ndarray, np.ndarray]:
+    """Cell edge, grid origin and per-face entry counts (see the module docstring)."""
+    step = max(1, low.shape[0] // 65536)  # the median of a sample is as good a start and 10x cheaper
+    extent = (high[::step] - low[::step]).max(axis=1)
+    span = float((high.max(axis=0) - low.min(axis=0)).max())
+    positive = extent[extent > 0]
+    size = float(np.median(positive)) if positive.size else max(span, 1.0)
+    size = max(size, span * 2.0**-20, 1e-300)  # at most 2^20 cells a side: linear keys stay within int64
+    origin = low.min(axis=0) - 0.5 * size
+    budget = ENTRIES_PER_FACE * low.shape[0] + 64
+    while True:
+        counts = kernels.cell_entry_counts(low, high, origin, size)
+        if float(counts.sum()) <= budget:
+            return size, origin, counts
+        size *= 1.5
+        origin = low.min(axis=0) - 0.5 * size
+
+
+def find_crossings(
+    corners: np.ndarray,
+    face_vertices: np.ndarray,
+    *,
+    relative_tolerance: float = RELATIVE_TOLERANCE,
+    include_vertex_neighbours: bool = False,
+) -> Crossings:
+    """Every pair of faces whose interiors cross, and every coplanar pair whose interiors overlap.
+
+    Parameters
+    ----------
+    corners : (F, 3, 3) float64 face corners, any one length unit (best relative to a point
+        near the part, so the tolerance sees the part's own digits)
+    face_vertices : (F, 3) int welded vertex ids; pairs sharing any vertex are skipped
+    relative_tolerance : corners closer than this fraction of the pair's size to the other's
+        plane count as lying in it
+    include_vertex_neighbours : also test pairs sharing exactly one vertex (two such faces can
+        still cross along a segment from that vertex: a fold). Off by default, as in the
+        rtree-based check; the volume bound turns it on.
+
+    Returns
+    -------
+    Crossings
+    """
+    corners = np.ascontiguousarray(corners, dtype=np.float64)
+    face_vertices = np.ascontiguousarray(face_vertices, dtype=np.int64)
+    count = corners.shape[0]
+    empty = np.zeros((0, 2), dtype=np.int64)
+    if count < 2:
+        return Crossings(empty, empty, 0.0, 0, 0.0)
+    kernels = _kernels()
+    started = time.perf_counter()
+    low = np.minimum(np.minimum(corners[:, 0], corners[:, 1]), corners[:, 2])
+    high = np.maximum(np.maximum(corners[:, 0], corners[:, 1]), corners[:, 2])
+    size, origin, counts = _cell_size(low, high, kernels)
+    top = np.floor((high.max(axis=0) - origin) / size).astype(np.int64) + 1
+    dims = np.maximum(top, 1)
+    offsets = np.zeros(count + 1, dtype=np.int64)
+    np.cumsum(counts, out=offsets[1:])
+    keys, faces = kernels.cell_entries(low, high, origin, size, dims, offsets)
+    cell_keys, starts, members = kernels.group_by_cell(keys, faces)
+    first, second, kind = kernels.grid_pairs(
+        cell_keys, starts, members, corners, face_vertices, low, high, origin, size, dims, relative_tolerance,
+        2 if include_vertex_neighbours else 1,
+    )
+    pairs = np.column_stack([first, second])
+    crossing = _sorted_rows(pairs[kind == kernels.CROSSING])
+    coplanar = _sorted_rows(pairs[kind == kernels.COPLANAR_OVERLAP])
+    return Crossings(crossing, coplanar, size, int(keys.size), time.perf_counter() - started)
+
+
+def _sorted_rows(pairs: np.ndarray) -> np.ndarray:
+    if pairs.shape[0] == 0:
+        return np.zeros((0, 2), dtype=np.int64)
+    order = np.lexsort((pairs[:, 1], pairs[:, 0]))
+    return np.ascontiguousarray(pairs[order])
+
+
+# ----------------------------------------------------------------------------- volume bound
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class CrossingBound:
+    """How much self-crossings of a closed surface can change the volume it encloses.
+
+    The divergence-theorem sum gives ∫ w dV, w the winding number of the surface;
+    the solid the surface means is where w ≥ 1. They differ only where w ≥ 2 or
+    w ≤ −1 (the "anomalous" regions). See :func:`crossing_volume_bound`.
+
+    Attributes
+    ----------
+    bounded : false when an anomalous region reaches faces that cross nothing (the
+        surface folds over a whole patch), so no local bound holds
+    volume_bound : upper bound of |∫ w dV − vol{w ≥ 1}|, in the corners' unit cubed
+        (``inf`` when not ``bounded``)
+    clusters : number of connected groups of crossing faces
+    area : total area of the faces that bound the anomalous regions, unit squared
+    faces_tested : non-crossing faces whose two sides were tested
+    """
+
+    bounded: bool
+    volume_bound: float
+    clusters: int
+    area: float
+    faces_tested: int
+
+
+#: Above this many faces grown into the anomalous regions the bound gives up.
+BOUND_FACE_LIMIT = 20_000
+
+
+def crossing_volume_bound(corners: np.ndarray, face_vertices: np.ndarray, pairs: np.ndarray) -> CrossingBound:
+    """Bound the volume error of a closed, consistently oriented surface that crosses itself.
+
+    Parameters
+    ----------
+    corners : (F, 3, 3) float64, any one unit; one closed, consistently oriented surface
+        (or several, each closed)
+    face_vertices : (F, 3) int welded vertex ids
+    pairs : (P, 2) crossing face pairs (:attr:`Crossings.pairs`)
+
+    Returns
+    -------
+    CrossingBound
+
+    Notes
+    -----
+    Each point of the surface is on the boundary of exactly one level set
+    {w ≥ k} or {w ≤ −k} (w jumps by one across a face). A face that crosses
+    nothing has each side in one region of constant w, and so do its edge
+    neighbours unless a crossing face passes between them. So if every
+    non-crossing face that shares an edge with an anomalous face has w = 1
+    just inside and w = 0 just outside (tested exactly by a ray from its
+    centroid), the anomalous regions are bounded by crossing faces only. Where a
+    neighbour fails, it joins the anomalous faces and its own neighbours are
+    tested (up to :data:`BOUND_FACE_LIMIT` faces).
+
+    The error is Σ vol of the anomalous level sets; each is bounded by pieces of
+    the anomalous faces of one cluster, each piece counted once, so by the
+    isoperimetric inequality (V ≤ A^{3/2} / (6√π), common practice) the error
+    of a cluster with anomalous area A is at most A^{3/2} / (6√π).
+    """
+    corners = np.ascontiguousarray(corners, dtype=np.float64)
+    face_vertices = np.asarray(face_vertices, dtype=np.int64)
+    pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
+    if pairs.shape[0] == 0:
+        return CrossingBound(True, 0.0, 0, 0.0, 0)
+    kernels = _kernels()
+    # faces sharing a vertex can cross too (a fold): they bound anomalous regions as well
+    pairs = np.concatenate([pairs, find_crossings(corners, face_vertices, include_vertex_neighbours=True).pairs])
+    count = corners.shape[0]
+    normals = np.cross(corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0])
+    areas = 0.5 * np.linalg.norm(normals, axis=1)
+    neighbours = _edge_neighbours(face_vertices)
+    anomalous = np.zeros(count, dtype=bool)
+    anomalous[pairs.ravel()] = True
+    tested = np.zeros(count, dtype=bool)
+    frontier = np.flatnonzero(anomalous)
+    bounded = True
+    while frontier.size:
+        candidates = np.unique(neighbours[frontier].ravel())
+        candidates = candidates[(candidates >= 0)]
+        candidates = candidates[~anomalous[candidates] & ~tested[candidates]]
+        if candidates.size == 0:
+            break
+        tested[candidates] = True
+        axes = np.abs(normals[candidates]).argmax(axis=1).astype(np.int64)
+        outside = kernels.face_sides_winding(corners, candidates.astype(np.int64), axes)
+        bad = candidates[outside != 0]
+        anomalous[bad] = True
+        frontier = bad
+        if np.count_nonzero(anomalous) > BOUND_FACE_LIMIT:
+            bounded = False
+            break
+    labels = _clusters(np.flatnonzero(anomalous), neighbours, pairs, count)
+    faces = np.flatnonzero(anomalous)
+    cluster_area = np.bincount(labels[faces], weights=areas[faces]) if faces.size else np.zeros(0)
+    cluster_count = int(np.count_nonzero(cluster_area > 0)) if faces.size else 0
+    if not bounded:
+        return CrossingBound(False, float("inf"), cluster_count, float(areas[faces].sum()), int(tested.sum()))
+    bound = float(np.sum(cluster_area**1.5) / (6.0 * np.sqrt(np.pi)))
+    return CrossingBound(True, bound, cluster_count, float(areas[faces].sum()), int(tested.sum()))
+
+
+def _edge_neighbours(face_vertices: np.ndarray) -> np.ndarray:
+    """(F, 3) the face across each edge (−1 where the edge is open or shared by more than two)."""
+    count = face_vertices.shape[0]
+    tails = face_vertices.ravel()
+    heads = face_vertices[:, [1, 2, 0]].ravel()
+    low = np.minimum(tails, heads)
+    high = np.maximum(tails, heads)
+    bound = int(face_vertices.max()) + 1 if count else 1
+    keys = low * bound + high
+    order = np.argsort(keys, kind="stable")
+    sorted_keys = keys[order]
+    out = np.full(3 * count, -1, dtype=np.int64)
+    same = np.flatnonzero(sorted_keys[1:] == sorted_keys[:-1])
+    # keep only edges used exactly twice
+    run_start = np.r_[True, sorted_keys[1:] != sorted_keys[:-1]]
+    run_id = np.cumsum(run_start) - 1
+    run_length = np.bincount(run_id)
+    two = same[run_length[run_id[same]] == 2]
+    a, b = order[two], order[two + 1]
+    out[a] = b // 3
+    out[b] = a // 3
+    return out.reshape(count, 3)
+
+
+def _clusters(faces: np.ndarray, neighbours: np.ndarray, pairs: np.ndarray, count: int) -> np.ndarray:
+    """(F,) labels joining anomalous faces that are edge neighbours or cross each other."""
+    parent = np.arange(count)
+    member = np.zeros(count, dtype=bool)
+    member[faces] = True
+    links = [pairs]
+    for k in range(3):
+        other = neighbours[faces, k]
+        keep = other >= 0
+        keep[keep] = member[other[keep]]
+        links.append(np.column_stack([faces[keep], other[keep]]))
+    edges = np.concatenate(links)
+    while True:  # label propagation with pointer jumping, until stable (a split cluster would shrink the bound)
+        before = parent.copy()
+        low = np.minimum(parent[edges[:, 0]], parent[edges[:, 1]])
+        np.minimum.at(parent, edges[:, 0], low)
+        np.minimum.at(parent, edges[:, 1], low)
+        parent = parent[parent]
+        if np.array_equal(parent, before):
+            break
+    return parent
