@@ -10,8 +10,12 @@ compile takes tens of seconds; it is announced once on stderr and never repeated
 while the cache stands. numba is imported only here, on first use, because its
 import alone costs ~0.4 s.
 
+Inputs are welded vertices and faces (never an (F, 3, 3) corner array: at 2M faces
+that alone is 144 MB and a third of a second to build).
+
 Broad phase: every face is entered in each cubic cell its bounding box overlaps.
-The cell edge starts at the median face size and grows until the entries are at
+The cell edge starts at twice the median face size (about two entries a face:
+fewer, larger cells cost less memory and time than many small ones) and grows until the entries are at
 most :data:`ENTRIES_PER_FACE` per face, so a few huge faces cannot blow the grid
 up. Each pair is tested once, in the cell holding the low corner of the overlap of
 the two faces' boxes. A fan of thousands of thin faces around a pole all lands in
@@ -36,7 +40,7 @@ from dataclasses import dataclass
 import numpy as np
 
 #: A face is entered in at most about this many grid cells on average (the cell grows until it holds).
-ENTRIES_PER_FACE = 6.0
+ENTRIES_PER_FACE = 4.0
 #: Relative tolerance of the narrow phase (as in the rtree-based check).
 RELATIVE_TOLERANCE = 1e-10
 
@@ -95,42 +99,42 @@ def _cache_folder(dispatcher) -> str:
 
 
 def _cache_is_warm(dispatcher) -> bool:
-    """Whether numba's on-disk cache holds an index for this kernel (best effort)."""
+    """Whether numba's on-disk cache holds this kernel for the current source (best effort)."""
     try:
-        cache = dispatcher._cache
-        return os.path.exists(os.path.join(cache._cache_path, cache._index_name))
+        return bool(dispatcher._cache._cache_file._load_index())
     except Exception:  # noqa: BLE001 - unknown numba internals: stay quiet rather than guess
         return True
 
 
 def warm_up() -> None:
     """Compile (or load from the cache) every kernel on a two-face input."""
-    corners = np.array([[[0.0, 0, 0], [1, 0, 0], [0, 1, 0]], [[0.2, 0.2, -1], [0.2, 0.2, 1], [1, 1, 0]]])
-    find_crossings(corners, np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64))
-    crossing_volume_bound(corners, np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64), np.array([[0, 1]]))
+    vertices = np.array([[0.0, 0, 0], [1, 0, 0], [0, 1, 0], [0.2, 0.2, -1], [0.2, 0.2, 1], [1, 1, 0]])
+    faces = np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64)
+    crossing_volume_bound(vertices, faces, find_crossings(vertices, faces).pairs)
 
 
-def _cell_size(low: np.ndarray, high: np.ndarray, kernels) -> tuple[float, np.ndarray, np.ndarray]:
+def _cell_size(low: np.ndarray, high: np.ndarray, vertices: np.ndarray, kernels) -> tuple[float, np.ndarray, np.ndarray]:
     """Cell edge, grid origin and per-face entry counts (see the module docstring)."""
+    bottom = np.array([vertices[:, axis].min() for axis in range(3)])
     step = max(1, low.shape[0] // 65536)  # the median of a sample is as good a start and 10x cheaper
     extent = (high[::step] - low[::step]).max(axis=1)
-    span = float((high.max(axis=0) - low.min(axis=0)).max())
+    span = float(max(vertices[:, axis].max() - bottom[axis] for axis in range(3)))
     positive = extent[extent > 0]
-    size = float(np.median(positive)) if positive.size else max(span, 1.0)
+    size = 2.0 * float(np.median(positive)) if positive.size else max(span, 1.0)
     size = max(size, span * 2.0**-20, 1e-300)  # at most 2^20 cells a side: linear keys stay within int64
-    origin = low.min(axis=0) - 0.5 * size
+    origin = bottom - 0.5 * size
     budget = ENTRIES_PER_FACE * low.shape[0] + 64
     while True:
         counts = kernels.cell_entry_counts(low, high, origin, size)
         if float(counts.sum()) <= budget:
             return size, origin, counts
         size *= 1.5
-        origin = low.min(axis=0) - 0.5 * size
+        origin = bottom - 0.5 * size
 
 
 def find_crossings(
-    corners: np.ndarray,
-    face_vertices: np.ndarray,
+    vertices: np.ndarray,
+    faces: np.ndarray,
     *,
     relative_tolerance: float = RELATIVE_TOLERANCE,
     include_vertex_neighbours: bool = False,
@@ -139,9 +143,10 @@ def find_crossings(
 
     Parameters
     ----------
-    corners : (F, 3, 3) float64 face corners, any one length unit (best relative to a point
-        near the part, so the tolerance sees the part's own digits)
-    face_vertices : (F, 3) int welded vertex ids; pairs sharing any vertex are skipped
+    vertices : (V, 3) float64 welded vertex positions, any one length unit (best relative to a
+        point near the part, so the tolerance sees the part's own digits)
+    faces : (F, 3) int vertex ids; pairs sharing any vertex are skipped (a triangle soup with
+        ``faces = arange(3F).reshape(F, 3)`` shares none)
     relative_tolerance : corners closer than this fraction of the pair's size to the other's
         plane count as lying in it
     include_vertex_neighbours : also test pairs sharing exactly one vertex (two such faces can
@@ -152,31 +157,34 @@ def find_crossings(
     -------
     Crossings
     """
-    corners = np.ascontiguousarray(corners, dtype=np.float64)
-    face_vertices = np.ascontiguousarray(face_vertices, dtype=np.int64)
-    count = corners.shape[0]
+    vertices = np.ascontiguousarray(vertices, dtype=np.float64)
+    faces = np.ascontiguousarray(faces, dtype=np.int64)
+    count = faces.shape[0]
     empty = np.zeros((0, 2), dtype=np.int64)
     if count < 2:
         return Crossings(empty, empty, 0.0, 0, 0.0)
     kernels = _kernels()
     started = time.perf_counter()
-    low = np.minimum(np.minimum(corners[:, 0], corners[:, 1]), corners[:, 2])
-    high = np.maximum(np.maximum(corners[:, 0], corners[:, 1]), corners[:, 2])
-    size, origin, counts = _cell_size(low, high, kernels)
-    top = np.floor((high.max(axis=0) - origin) / size).astype(np.int64) + 1
+    low, high = kernels.face_boxes(vertices, faces)
+    size, origin, counts = _cell_size(low, high, vertices, kernels)
+    top = np.floor((vertices.max(axis=0) - origin) / size).astype(np.int64) + 1
     dims = np.maximum(top, 1)
     offsets = np.zeros(count + 1, dtype=np.int64)
     np.cumsum(counts, out=offsets[1:])
-    keys, faces = kernels.cell_entries(low, high, origin, size, dims, offsets)
-    cell_keys, starts, members = kernels.group_by_cell(keys, faces)
+    keys, members = kernels.cell_entries(low, high, origin, size, dims, offsets)
+    entries = int(keys.size)
+    buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 2.0))))
+    starts, member_keys, members = kernels.group_by_bucket(keys, members, buckets)
+    del keys
+    kernels.sort_buckets(starts, member_keys, members, low)
     first, second, kind = kernels.grid_pairs(
-        cell_keys, starts, members, corners, face_vertices, low, high, origin, size, dims, relative_tolerance,
+        member_keys, starts, members, vertices, faces, low, high, origin, size, dims, relative_tolerance,
         2 if include_vertex_neighbours else 1,
-    )
+    )  # fmt: skip
     pairs = np.column_stack([first, second])
     crossing = _sorted_rows(pairs[kind == kernels.CROSSING])
     coplanar = _sorted_rows(pairs[kind == kernels.COPLANAR_OVERLAP])
-    return Crossings(crossing, coplanar, size, int(keys.size), time.perf_counter() - started)
+    return Crossings(crossing, coplanar, size, entries, time.perf_counter() - started)
 
 
 def _sorted_rows(pairs: np.ndarray) -> np.ndarray:
@@ -219,14 +227,13 @@ class CrossingBound:
 BOUND_FACE_LIMIT = 20_000
 
 
-def crossing_volume_bound(corners: np.ndarray, face_vertices: np.ndarray, pairs: np.ndarray) -> CrossingBound:
+def crossing_volume_bound(vertices: np.ndarray, faces: np.ndarray, pairs: np.ndarray) -> CrossingBound:
     """Bound the volume error of a closed, consistently oriented surface that crosses itself.
 
     Parameters
     ----------
-    corners : (F, 3, 3) float64, any one unit; one closed, consistently oriented surface
-        (or several, each closed)
-    face_vertices : (F, 3) int welded vertex ids
+    vertices : (V, 3) float64 welded vertex positions, any one unit
+    faces : (F, 3) int vertex ids: one closed, consistently oriented surface (or several, each closed)
     pairs : (P, 2) crossing face pairs (:attr:`Crossings.pairs`)
 
     Returns
@@ -250,18 +257,19 @@ def crossing_volume_bound(corners: np.ndarray, face_vertices: np.ndarray, pairs:
     isoperimetric inequality (V ≤ A^{3/2} / (6√π), common practice) the error
     of a cluster with anomalous area A is at most A^{3/2} / (6√π).
     """
-    corners = np.ascontiguousarray(corners, dtype=np.float64)
-    face_vertices = np.asarray(face_vertices, dtype=np.int64)
+    vertices = np.ascontiguousarray(vertices, dtype=np.float64)
+    faces = np.ascontiguousarray(faces, dtype=np.int64)
     pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
     if pairs.shape[0] == 0:
         return CrossingBound(True, 0.0, 0, 0.0, 0)
     kernels = _kernels()
     # faces sharing a vertex can cross too (a fold): they bound anomalous regions as well
-    pairs = np.concatenate([pairs, find_crossings(corners, face_vertices, include_vertex_neighbours=True).pairs])
+    pairs = np.concatenate([pairs, find_crossings(vertices, faces, include_vertex_neighbours=True).pairs])
+    corners = np.ascontiguousarray(vertices[faces])
     count = corners.shape[0]
     normals = np.cross(corners[:, 1] - corners[:, 0], corners[:, 2] - corners[:, 0])
     areas = 0.5 * np.linalg.norm(normals, axis=1)
-    neighbours = _edge_neighbours(face_vertices)
+    neighbours = _edge_neighbours(faces)
     anomalous = np.zeros(count, dtype=bool)
     anomalous[pairs.ravel()] = True
     tested = np.zeros(count, dtype=bool)

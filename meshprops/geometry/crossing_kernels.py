@@ -20,11 +20,6 @@ COPLANAR_OVERLAP = 2
 
 
 @njit(cache=True, inline="always")
-def _sub(p, q):
-    return p[0] - q[0], p[1] - q[1], p[2] - q[2]
-
-
-@njit(cache=True, inline="always")
 def _cross3(ax, ay, az, bx, by, bz):
     return ay * bz - az * by, az * bx - ax * bz, ax * by - ay * bx
 
@@ -33,9 +28,10 @@ def _cross3(ax, ay, az, bx, by, bz):
 def _coplanar_overlap(a, b, normal, scale, tolerance):
     """Strict 2D overlap of two coplanar triangles' interiors (separating-axis test).
 
-    ``a``, ``b`` (3, 3) corners relative to a common point; ``normal`` the plane's
-    normal. The plane is projected on the coordinate plane that drops the normal's
-    largest component. Touching along an edge or at a corner is no overlap.
+    ``a``, ``b`` tuples of three corners (x, y, z) relative to a common point;
+    ``normal`` the plane's normal. The plane is projected on the coordinate plane
+    that drops the normal's largest component. Touching along an edge or at a
+    corner is no overlap.
     """
     drop = 0
     if abs(normal[1]) > abs(normal[drop]):
@@ -49,8 +45,8 @@ def _coplanar_overlap(a, b, normal, scale, tolerance):
         for k in range(3):
             j = (k + 1) % 3
             # 2D normal of edge k of triangle t
-            mx = t[j, v] - t[k, v]
-            my = -(t[j, u] - t[k, u])
+            mx = t[j][v] - t[k][v]
+            my = -(t[j][u] - t[k][u])
             length = np.sqrt(mx * mx + my * my)
             if length == 0.0:
                 return False
@@ -59,8 +55,8 @@ def _coplanar_overlap(a, b, normal, scale, tolerance):
             low_b = np.inf
             high_b = -np.inf
             for c in range(3):
-                pa = a[c, u] * mx + a[c, v] * my
-                pb = b[c, u] * mx + b[c, v] * my
+                pa = a[c][u] * mx + a[c][v] * my
+                pb = b[c][u] * mx + b[c][v] * my
                 low_a = min(low_a, pa)
                 high_a = max(high_a, pa)
                 low_b = min(low_b, pb)
@@ -71,77 +67,96 @@ def _coplanar_overlap(a, b, normal, scale, tolerance):
     return True
 
 
+@njit(cache=True, inline="always")
+def _corner(vertices, faces, face, k, ox, oy, oz):
+    v = faces[face, k]
+    return (vertices[v, 0] - ox, vertices[v, 1] - oy, vertices[v, 2] - oz)
+
+
+@njit(cache=True, inline="always")
+def _dot_from(n, p, q):
+    return n[0] * (p[0] - q[0]) + n[1] * (p[1] - q[1]) + n[2] * (p[2] - q[2])
+
+
+@njit(cache=True, inline="always")
+def _normal(t):
+    return _cross3(t[1][0] - t[0][0], t[1][1] - t[0][1], t[1][2] - t[0][2],
+                   t[2][0] - t[0][0], t[2][1] - t[0][1], t[2][2] - t[0][2])  # fmt: skip
+
+
 @njit(cache=True)
-def pair_relation(corners, first, second, tolerance):
+def pair_relation(vertices, faces, first, second, tolerance):
     """How faces ``first`` and ``second`` meet: NONE, CROSSING or COPLANAR_OVERLAP.
 
     The non-coplanar test is the same arithmetic as
     :func:`meshprops.checks.triangles_cross` (Möller's interval test, Möller 1997,
     "A fast triangle-triangle intersection test", J. Graphics Tools 2(2); from
-    memory), written per pair: each triangle must have corners strictly on both
-    sides of the other's plane, and the two intervals in which the triangles meet
-    the planes' common line must overlap by more than the tolerance. Coplanar pairs
-    (every corner of each in the other's plane) get a strict 2D overlap test.
+    memory), written per pair on the stack: each triangle must have corners
+    strictly on both sides of the other's plane, and the two intervals in which the
+    triangles meet the planes' common line must overlap by more than the
+    tolerance. Coplanar pairs (every corner of each in the other's plane) get a
+    strict 2D overlap test.
     """
-    a = np.empty((3, 3))
-    b = np.empty((3, 3))
+    origin = faces[first, 0]
+    ox = vertices[origin, 0]
+    oy = vertices[origin, 1]
+    oz = vertices[origin, 2]
+    a = (_corner(vertices, faces, first, 0, ox, oy, oz), _corner(vertices, faces, first, 1, ox, oy, oz),
+         _corner(vertices, faces, first, 2, ox, oy, oz))  # fmt: skip
+    b = (_corner(vertices, faces, second, 0, ox, oy, oz), _corner(vertices, faces, second, 1, ox, oy, oz),
+         _corner(vertices, faces, second, 2, ox, oy, oz))  # fmt: skip
     scale = 0.0
     for k in range(3):
         for i in range(3):
-            a[k, i] = corners[first, k, i] - corners[first, 0, i]
-            b[k, i] = corners[second, k, i] - corners[first, 0, i]
-            scale = max(scale, abs(a[k, i]), abs(b[k, i]))
+            scale = max(scale, abs(a[k][i]), abs(b[k][i]))
     if scale == 0.0:
         scale = 1.0
-    nax, nay, naz = _cross3(a[1, 0] - a[0, 0], a[1, 1] - a[0, 1], a[1, 2] - a[0, 2],
-                            a[2, 0] - a[0, 0], a[2, 1] - a[0, 1], a[2, 2] - a[0, 2])  # fmt: skip
-    nbx, nby, nbz = _cross3(b[1, 0] - b[0, 0], b[1, 1] - b[0, 1], b[1, 2] - b[0, 2],
-                            b[2, 0] - b[0, 0], b[2, 1] - b[0, 1], b[2, 2] - b[0, 2])  # fmt: skip
-    norm_a = np.sqrt(nax * nax + nay * nay + naz * naz)
-    norm_b = np.sqrt(nbx * nbx + nby * nby + nbz * nbz)
+    na = _normal(a)
+    nb = _normal(b)
+    norm_a = np.sqrt(na[0] * na[0] + na[1] * na[1] + na[2] * na[2])
+    norm_b = np.sqrt(nb[0] * nb[0] + nb[1] * nb[1] + nb[2] * nb[2])
     if norm_a == 0.0 or norm_b == 0.0:
         return NONE
-    dist_a = np.empty(3)
-    dist_b = np.empty(3)
-    zeros_a = 0
-    zeros_b = 0
-    for k in range(3):
-        da = nbx * (a[k, 0] - b[0, 0]) + nby * (a[k, 1] - b[0, 1]) + nbz * (a[k, 2] - b[0, 2])
-        db = nax * (b[k, 0] - a[0, 0]) + nay * (b[k, 1] - a[0, 1]) + naz * (b[k, 2] - a[0, 2])
-        if abs(da) <= tolerance * (norm_b * scale):
-            da = 0.0
-            zeros_a += 1
-        if abs(db) <= tolerance * (norm_a * scale):
-            db = 0.0
-            zeros_b += 1
-        dist_a[k] = da
-        dist_b[k] = db
-    lx, ly, lz = _cross3(nax, nay, naz, nbx, nby, nbz)
-    line_norm = np.sqrt(lx * lx + ly * ly + lz * lz)
+    limit_a = tolerance * (norm_b * scale)
+    limit_b = tolerance * (norm_a * scale)
+    da0 = _dot_from(nb, a[0], b[0])
+    da1 = _dot_from(nb, a[1], b[0])
+    da2 = _dot_from(nb, a[2], b[0])
+    db0 = _dot_from(na, b[0], a[0])
+    db1 = _dot_from(na, b[1], a[0])
+    db2 = _dot_from(na, b[2], a[0])
+    da0 = 0.0 if abs(da0) <= limit_a else da0
+    da1 = 0.0 if abs(da1) <= limit_a else da1
+    da2 = 0.0 if abs(da2) <= limit_a else da2
+    db0 = 0.0 if abs(db0) <= limit_b else db0
+    db1 = 0.0 if abs(db1) <= limit_b else db1
+    db2 = 0.0 if abs(db2) <= limit_b else db2
+    line = _cross3(na[0], na[1], na[2], nb[0], nb[1], nb[2])
+    line_norm = np.sqrt(line[0] * line[0] + line[1] * line[1] + line[2] * line[2])
     if not line_norm > tolerance * norm_a * norm_b:
-        if zeros_a == 3 and zeros_b == 3:
-            normal = np.array([nax, nay, naz])
-            if _coplanar_overlap(a, b, normal, scale, tolerance):
+        if da0 == 0.0 and da1 == 0.0 and da2 == 0.0 and db0 == 0.0 and db1 == 0.0 and db2 == 0.0:
+            if _coplanar_overlap(a, b, na, scale, tolerance):
                 return COPLANAR_OVERLAP
         return NONE
-    if not (max(dist_a[0], dist_a[1], dist_a[2]) > 0.0 and min(dist_a[0], dist_a[1], dist_a[2]) < 0.0):
+    if not (max(da0, da1, da2) > 0.0 and min(da0, da1, da2) < 0.0):
         return NONE
-    if not (max(dist_b[0], dist_b[1], dist_b[2]) > 0.0 and min(dist_b[0], dist_b[1], dist_b[2]) < 0.0):
+    if not (max(db0, db1, db2) > 0.0 and min(db0, db1, db2) < 0.0):
         return NONE
-    low_a, high_a = _plane_interval(a, dist_a, lx, ly, lz)
-    low_b, high_b = _plane_interval(b, dist_b, lx, ly, lz)
+    low_a, high_a = _plane_interval(a, (da0, da1, da2), line)
+    low_b, high_b = _plane_interval(b, (db0, db1, db2), line)
     if min(high_a, high_b) - max(low_a, low_b) > tolerance * 1e2 * line_norm * scale:
         return CROSSING
     return NONE
 
 
 @njit(cache=True)
-def _plane_interval(t, distance, lx, ly, lz):
-    projection = np.empty(3)
+def _plane_interval(t, distance, line):
     low = np.inf
     high = -np.inf
+    projection = (t[0][0] * line[0] + t[0][1] * line[1] + t[0][2] * line[2],
+                  t[1][0] * line[0] + t[1][1] * line[1] + t[1][2] * line[2],
+                  t[2][0] * line[0] + t[2][1] * line[1] + t[2][2] * line[2])  # fmt: skip
     for k in range(3):
-        projection[k] = t[k, 0] * lx + t[k, 1] * ly + t[k, 2] * lz
         if distance[k] == 0.0:
             low = min(low, projection[k])
             high = max(high, projection[k])
@@ -151,6 +166,22 @@ def _plane_interval(t, distance, lx, ly, lz):
             value = projection[k] + (projection[j] - projection[k]) * distance[k] / (distance[k] - distance[j])
             low = min(low, value)
             high = max(high, value)
+    return low, high
+
+
+@njit(cache=True, parallel=True)
+def face_boxes(vertices, faces):
+    """(F, 3) lowest and highest corner coordinates of each face."""
+    count = faces.shape[0]
+    low = np.empty((count, 3))
+    high = np.empty((count, 3))
+    for face in prange(count):
+        for axis in range(3):
+            p = vertices[faces[face, 0], axis]
+            q = vertices[faces[face, 1], axis]
+            r = vertices[faces[face, 2], axis]
+            low[face, axis] = min(p, q, r)
+            high[face, axis] = max(p, q, r)
     return low, high
 
 
@@ -174,7 +205,7 @@ def cell_entries(low, high, origin, cell_size, dims, offsets):
     """Linear cell key of every (face, cell) entry; ``offsets`` (F + 1,) from the counts."""
     count = low.shape[0]
     keys = np.empty(offsets[count], dtype=np.int64)
-    faces = np.empty(offsets[count], dtype=np.int64)
+    faces = np.empty(offsets[count], dtype=np.int32)
     for face in prange(count):
         lo = np.empty(3, dtype=np.int64)
         hi = np.empty(3, dtype=np.int64)
@@ -191,66 +222,79 @@ def cell_entries(low, high, origin, cell_size, dims, offsets):
     return keys, faces
 
 
-@njit(cache=True)
-def group_by_cell(keys, faces):
-    """Dense cell numbering by an open-addressing hash table, then a counting sort.
+@njit(cache=True, inline="always")
+def _bucket(key, mask):
+    return np.int64((np.uint64(key) * np.uint64(0x9E3779B97F4A7C15)) >> np.uint64(29)) & mask
 
-    Returns ``cell_keys`` (C,), ``starts`` (C + 1,) and ``members`` (E,): the faces of
-    cell ``c`` are ``members[starts[c]:starts[c + 1]]``.
+
+@njit(cache=True)
+def group_by_bucket(keys, faces, bucket_count):
+    """Counting sort of the (cell key, face) entries into ``bucket_count`` hash buckets (a power of two).
+
+    A bucket may hold several cells whose keys collide; the pair loop compares
+    keys, so collisions cost a few extra comparisons and never a wrong pair.
+    Returns ``starts`` (B + 1,) int64, ``member_keys`` (E,) int64 and
+    ``member_faces`` (E,) int32: bucket ``b`` holds entries ``starts[b]:starts[b + 1]``.
     """
     entries = keys.shape[0]
-    size = 1
-    while size < 2 * entries + 2:
-        size *= 2
-    mask = size - 1
-    slot_key = np.full(size, -1, dtype=np.int64)
-    slot_id = np.empty(size, dtype=np.int64)
-    dense = np.empty(entries, dtype=np.int64)
-    cell_keys = np.empty(entries, dtype=np.int64)
-    cells = 0
+    mask = bucket_count - 1
+    starts = np.zeros(bucket_count + 1, dtype=np.int64)
     for e in range(entries):
-        key = keys[e]
-        h = np.uint64(key) * np.uint64(0x9E3779B97F4A7C15)
-        slot = np.int64(h >> np.uint64(33)) & mask
-        while True:
-            if slot_key[slot] == key:
-                dense[e] = slot_id[slot]
-                break
-            if slot_key[slot] == -1:
-                slot_key[slot] = key
-                slot_id[slot] = cells
-                cell_keys[cells] = key
-                dense[e] = cells
-                cells += 1
-                break
-            slot = (slot + 1) & mask
-    starts = np.zeros(cells + 1, dtype=np.int64)
+        starts[_bucket(keys[e], mask) + 1] += 1
+    for b in range(bucket_count):
+        starts[b + 1] += starts[b]
+    fill = starts[:bucket_count].copy()
+    member_keys = np.empty(entries, dtype=np.int64)
+    member_faces = np.empty(entries, dtype=np.int32)
     for e in range(entries):
-        starts[dense[e] + 1] += 1
-    for c in range(cells):
-        starts[c + 1] += starts[c]
-    fill = starts[:cells].copy()
-    members = np.empty(entries, dtype=np.int64)
-    for e in range(entries):
-        members[fill[dense[e]]] = faces[e]
-        fill[dense[e]] += 1
-    return cell_keys[:cells].copy(), starts, members
+        b = _bucket(keys[e], mask)
+        member_keys[fill[b]] = keys[e]
+        member_faces[fill[b]] = faces[e]
+        fill[b] += 1
+    return starts, member_keys, member_faces
+
+
+@njit(cache=True, parallel=True)
+def sort_buckets(starts, member_keys, member_faces, low):
+    """Sort each bucket by (cell key, lowest x of the face's box), in place (insertion sort: buckets are small).
+
+    The pair loop then sweeps along x within a cell and stops at the first face that
+    starts beyond the current one's end.
+    """
+    for b in prange(starts.shape[0] - 1):
+        begin = starts[b]
+        end = starts[b + 1]
+        for p in range(begin + 1, end):
+            key = member_keys[p]
+            face = member_faces[p]
+            x = low[face, 0]
+            q = p - 1
+            while q >= begin and (member_keys[q] > key or (member_keys[q] == key and low[member_faces[q], 0] > x)):
+                member_keys[q + 1] = member_keys[q]
+                member_faces[q + 1] = member_faces[q]
+                q -= 1
+            member_keys[q + 1] = key
+            member_faces[q + 1] = face
 
 
 @njit(cache=True)
-def _cell_pairs(c, cell_keys, starts, members, corners, face_vertices, low, high, origin, cell_size, dims,
+def _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims,
                 tolerance, skip_shared, out_first, out_second, out_kind, position, write):  # fmt: skip
-    key = cell_keys[c]
-    cz = key % dims[2]
-    cy = (key // dims[2]) % dims[1]
-    cx = key // (dims[2] * dims[1])
     found = 0
     begin = starts[c]
     end = starts[c + 1]
     for p in range(begin, end):
         i = members[p]
+        key = member_keys[p]
+        cz = key % dims[2]
+        cy = (key // dims[2]) % dims[1]
+        cx = key // (dims[2] * dims[1])
         for q in range(p + 1, end):
+            if member_keys[q] != key:
+                break  # sorted by key: the cell's entries end here
             j = members[q]
+            if low[j, 0] > high[i, 0]:
+                break  # sorted by low x within the cell: no later face reaches back to face i
             # bounding boxes must overlap
             if (low[i, 0] > high[j, 0] or low[j, 0] > high[i, 0] or low[i, 1] > high[j, 1]
                     or low[j, 1] > high[i, 1] or low[i, 2] > high[j, 2] or low[j, 2] > high[i, 2]):  # fmt: skip
@@ -264,11 +308,11 @@ def _cell_pairs(c, cell_keys, starts, members, corners, face_vertices, low, high
             shared = 0
             for s in range(3):
                 for t in range(3):
-                    if face_vertices[i, s] == face_vertices[j, t]:
+                    if faces[i, s] == faces[j, t]:
                         shared += 1
             if shared >= skip_shared:
                 continue
-            kind = pair_relation(corners, i, j, tolerance)
+            kind = pair_relation(vertices, faces, i, j, tolerance)
             if kind != NONE:
                 if write:
                     out_first[position + found] = min(i, j)
@@ -279,7 +323,7 @@ def _cell_pairs(c, cell_keys, starts, members, corners, face_vertices, low, high
 
 
 @njit(cache=True, parallel=True)
-def grid_pairs(cell_keys, starts, members, corners, face_vertices, low, high, origin, cell_size, dims, tolerance,
+def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims, tolerance,
                skip_shared):  # fmt: skip
     """Every pair of faces that cross (kind 1) or overlap coplanar (kind 2), each once.
 
@@ -288,13 +332,13 @@ def grid_pairs(cell_keys, starts, members, corners, face_vertices, low, high, or
     write at each cell's offset. Returns ``first``, ``second`` (P,) int64 face
     numbers (first < second) and ``kind`` (P,) int8.
     """
-    cells = cell_keys.shape[0]
+    cells = starts.shape[0] - 1
     counts = np.zeros(cells + 1, dtype=np.int64)
     dummy = np.empty(0, dtype=np.int64)
     dummy_kind = np.empty(0, dtype=np.int8)
     for c in prange(cells):
         if starts[c + 1] - starts[c] > 1:
-            counts[c + 1] = _cell_pairs(c, cell_keys, starts, members, corners, face_vertices, low, high, origin,
+            counts[c + 1] = _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin,
                                         cell_size, dims, tolerance, skip_shared, dummy, dummy, dummy_kind, 0,
                                         False)  # fmt: skip
     for c in range(cells):
@@ -306,7 +350,7 @@ def grid_pairs(cell_keys, starts, members, corners, face_vertices, low, high, or
     if total > 0:
         for c in prange(cells):
             if counts[c + 1] > counts[c]:
-                _cell_pairs(c, cell_keys, starts, members, corners, face_vertices, low, high, origin, cell_size,
+                _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size,
                             dims, tolerance, skip_shared, first, second, kind, counts[c], True)  # fmt: skip
     return first, second, kind
 
