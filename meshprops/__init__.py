@@ -26,6 +26,7 @@ from .physics.principal import PrincipalFrame, principal_frame
 from .physics.spin import SpinState, spin
 from .validation.checks import validate
 from .validation.findings import Finding, ValidationReport
+from .validation.solid import Solid, SolidOptions, resolve_solid
 from .version import __version__
 
 _LAZY = {
@@ -50,5 +51,5 @@ __all__ = [
     "Mesh", "MeshFileError", "MeshpropsError", "Moments", "PhysicsError", "PrincipalFrame", "SpinState",
     "UnitError", "ValidationReport", "__version__", "combine", "integrate_chunks", "integrate_triangles",
     "load_mesh", "measure_file", "measure_mesh", "mesh_from_arrays", "mesh_from_triangles", "principal_frame",
-    "rotate_tensor", "spin", "validate", "load_manifest", "measure_manifest", "measure_assembly", "measure_files",
+    "rotate_tensor", "spin", "validate", "Solid", "SolidOptions", "resolve_solid", "load_manifest", "measure_manifest", "measure_assembly", "measure_files",
 ]  # fmt: skip

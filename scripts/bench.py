@@ -5,7 +5,7 @@ and exits 0 whatever they are (no timed assertions anywhere).
 
 What it does, in one run:
 
-1. Makes closed, outward-oriented binary STL tori of about 1M and 5M triangles
+1. Makes closed, outward-oriented binary STL tori of about 1M, 2M and 5M triangles
    (``meshprops.geometry.shapes.torus`` written with ``meshprops.io.writers.write_binary_stl``,
    millimetres) in ``bench_data/`` (git-ignored), reusing them on later runs.
 2. End to end, each as a fresh process, alternating the two sides:
@@ -29,7 +29,7 @@ What it does, in one run:
 
 Usage (from the repository root)::
 
-    python scripts/bench.py                  # 1M and 5M triangles, 3 repetitions
+    python scripts/bench.py                  # 1M, 2M and 5M triangles, 3 repetitions
     python scripts/bench.py --quick          # smoke run with small files
     python scripts/bench.py --sizes 2M --repeats 5
     python scripts/bench.py --batch          # batch modes: 2,000 small parts (scripts/batch_bench.py)
@@ -68,6 +68,12 @@ GOAL_SPEEDUP = 5.0  # end to end, at 1M triangles and above
 GOAL_SPEEDUP_FROM = 1_000_000
 GOAL_BYTES_PER_TRIANGLE = 150.0
 GOAL_INTEGRATION_OVER_READ = 10.0
+#: The goals of issue 8, item 4: check at most 0.6x the reference's load-and-measure time at 1M
+#: faces; measure (self-intersections tested at every size) at least 4x faster at 2M triangles.
+GOAL_CHECK_OVER_REFERENCE = 0.6
+GOAL_CHECK_AT = 1_000_000
+GOAL_MEASURE_SPEEDUP_WITH_TEST = 4.0
+GOAL_MEASURE_SPEEDUP_WITH_TEST_AT = 2_000_000
 
 #: Torus size in millimetres (the benchmark's own part: a tyre-like ring).
 MAJOR_RADIUS_MM = 100.0
@@ -136,6 +142,11 @@ def meshprops_command(path: Path) -> list[str]:
     return program + ["measure", str(path), "--json"]
 
 
+def check_command(path: Path) -> list[str]:
+    """``meshprops check FILE --json``: every check, self-intersections included."""
+    return meshprops_command(path)[:-3] + ["check", str(path), "--json"]
+
+
 def reference_command(path: Path) -> list[str]:
     return [sys.executable, "-c", REFERENCE_SCRIPT, str(path)]
 
@@ -180,11 +191,12 @@ def run_fresh(command: list[str]) -> dict:
     return {"seconds": float(seconds), "maxrss": int(maxrss), "code": int(code), "stdout": stdout, "stderr": stderr}
 
 
-def end_to_end(path: Path, faces: int, repeats: int, with_reference: bool) -> dict:
-    """Alternate ours and the reference, each a fresh process, ``repeats`` times."""
+def end_to_end(path: Path, faces: int, repeats: int, with_reference: bool, command=None) -> dict:
+    """Alternate ours (``command``, default measure) and the reference, each a fresh process, ``repeats`` times."""
     ours, reference = [], []
+    build = command or meshprops_command
     for repetition in range(repeats):
-        order = [("ours", meshprops_command(path))]
+        order = [("ours", build(path))]
         if with_reference:
             order.append(("reference", reference_command(path)))
         if repetition % 2:
@@ -192,7 +204,7 @@ def end_to_end(path: Path, faces: int, repeats: int, with_reference: bool) -> di
         for side, command in order:
             result = run_fresh(command)
             (ours if side == "ours" else reference).append(result)
-            if result["code"] != 0:
+            if result["code"] not in (0, 3):  # check exits 3 on warnings only
                 line = result["stderr"].strip().splitlines()[-1:] or ["(no message)"]
                 print(f"  ! {side} exited {result['code']} on {path.name}: {line[0]}")
     return {"ours": ours, "reference": reference}
@@ -234,7 +246,9 @@ def in_process(path: Path, repeats: int) -> dict:
     load_times, mesh = timed(lambda: load_mesh(path, "mm"), repeats)
     integrate_times, moments = timed(lambda: integrate_chunks(mesh.triangle_chunks()), repeats)
     validate_times, report = timed(lambda: validate(mesh, moments), repeats)
+    crossing_times, _ = timed(lambda: _crossing_seconds(mesh), repeats)
     return {
+        "crossings": [seconds for seconds in crossing_times],
         "read": read_times,
         "load": load_times,
         "integrate": integrate_times,
@@ -242,6 +256,17 @@ def in_process(path: Path, repeats: int) -> dict:
         "valid": report.valid,
         "findings": [finding.code for finding in report.findings],
     }
+
+
+def _crossing_seconds(mesh) -> float:
+    """Wall time of the self-intersection finder alone (grid + compiled kernels) on the welded mesh."""
+    from meshprops.geometry.crossing import find_crossings
+    from meshprops.geometry.welding import weld_exact
+    from meshprops.validation.checks import welded_positions
+
+    topology = weld_exact(mesh)
+    positions = welded_positions(mesh, topology, mesh.reference_point())
+    return find_crossings(positions, topology.face_vertices).seconds
 
 
 # ---------------------------------------------------------------------------- printing
@@ -364,7 +389,7 @@ def gate_bench(parts: int, repeats: int) -> None:
 
 def main(argv: list[str] | None = None) -> int:
     parser = argparse.ArgumentParser(description=__doc__.split("\n\n")[0], formatter_class=argparse.RawDescriptionHelpFormatter)
-    parser.add_argument("--sizes", default="1M,5M", help="comma-separated triangle counts, e.g. 1M,5M or 250k (default 1M,5M)")
+    parser.add_argument("--sizes", default="1M,2M,5M", help="comma-separated triangle counts, e.g. 1M,5M or 250k (default 1M,2M,5M)")
     parser.add_argument("--repeats", type=int, default=3, help="repetitions per measurement; medians are printed (default 3)")
     parser.add_argument("--quick", action="store_true", help="smoke run: 20k and 100k triangles, 2 repetitions")
     parser.add_argument("--data-dir", type=Path, default=DEFAULT_DATA, help=f"where the STL files live (default {DEFAULT_DATA})")
@@ -444,24 +469,43 @@ def main(argv: list[str] | None = None) -> int:
     print("  (speed-up goal applies from 1M triangles; peak memory is the whole process, interpreter included)")
     for line in agreements:
         print(line)
+    if with_reference:
+        print("\nissue 8 goals, side by side in this run (seconds; medians):")
+        print(f"  {'triangles':>11}  {'check s':>18}  {'measure s':>18}  {'reference s':>18}  {'check/ref':>9}  {'goal<=0.6':>9}  {'speed-up':>8}  {'goal>=4x':>8}")
+        for path, faces in files:
+            checks = end_to_end(path, faces, repeats, True, command=check_command)
+            measures = end_to_end(path, faces, repeats, False)
+            check_seconds = median([r["seconds"] for r in checks["ours"]])
+            measure_seconds = median([r["seconds"] for r in measures["ours"]])
+            ref = median([r["seconds"] for r in checks["reference"]])
+            check_goal = check_seconds / ref <= GOAL_CHECK_OVER_REFERENCE if faces >= GOAL_CHECK_AT else None
+            speed_goal = ref / measure_seconds >= GOAL_MEASURE_SPEEDUP_WITH_TEST if faces >= GOAL_MEASURE_SPEEDUP_WITH_TEST_AT else None
+            print(
+                f"  {faces:>11,}  {spread([r['seconds'] for r in checks['ours']]):>18}  {spread([r['seconds'] for r in measures['ours']]):>18}"
+                f"  {spread([r['seconds'] for r in checks['reference']]):>18}  {check_seconds / ref:>8.2f}x  {verdict(check_goal):>9}"
+                f"  {ref / measure_seconds:>7.2f}x  {verdict(speed_goal):>8}"
+            )
+        print(f"  (check goal from {GOAL_CHECK_AT:,} faces; measure goal, self-intersections tested, from {GOAL_MEASURE_SPEEDUP_WITH_TEST_AT:,})")
 
     if not arguments.no_in_process:
         print("\nin process (milliseconds, and nanoseconds per triangle):")
-        print(f"  {'triangles':>11}  {'read file':>16}  {'load_mesh':>16}  {'integrate':>16}  {'validate':>18}  {'integrate/read':>14}  {'goal<=10x':>9}")
+        print(f"  {'triangles':>11}  {'read file':>16}  {'load_mesh':>16}  {'integrate':>16}  {'validate':>18}  {'crossings':>16}  {'integrate/read':>14}  {'goal<=10x':>9}")
         for path, faces in files:
             figures = in_process(path, repeats)
             cells = []
-            for key in ("read", "load", "integrate", "validate"):
+            for key in ("read", "load", "integrate", "validate", "crossings"):
                 value = median(figures[key])
                 cells.append(f"{value * 1e3:.1f} ({value * 1e9 / faces:.0f} ns)")
             ratio = median(figures["integrate"]) / median(figures["read"])
             print(
-                f"  {faces:>11,}  {cells[0]:>16}  {cells[1]:>16}  {cells[2]:>16}  {cells[3]:>18}  {ratio:>13.1f}x"
+                f"  {faces:>11,}  {cells[0]:>16}  {cells[1]:>16}  {cells[2]:>16}  {cells[3]:>18}  {cells[4]:>16}  {ratio:>13.1f}x"
                 f"  {verdict(ratio <= GOAL_INTEGRATION_OVER_READ):>9}"
             )
             if not figures["valid"]:
                 print(f"  ! validation found errors: {figures['findings']}")
-        print("  read file = memory map + touch every byte; integrate = integrate_chunks(mesh.triangle_chunks())")
+        print("  read file = memory map + touch every byte; integrate = integrate_chunks(mesh.triangle_chunks());")
+        print("  validate = every check (weld, edges, shells, zero-area and duplicate faces, crossings);")
+        print("  crossings = the compiled self-intersection finder alone (grid broad phase + narrow phase)")
 
     print(f"\nload average at end: {load_average()}")
     print(

@@ -12,6 +12,7 @@ pool, a Dask cluster); what was computed before can come from the content-hash c
 
 from __future__ import annotations
 
+import functools
 import json
 import os
 from collections.abc import Callable, Iterable, Iterator, Sequence
@@ -24,7 +25,7 @@ from ..io.loaders import load_mesh_content
 from ..measure.body import BodyMeasurement, measure_mesh
 from ..measure.manifest import load_manifest
 from ..measure.options import MeasureOptions
-from ..validation.checks import CheckResult, check_mesh
+from ..validation.solid import CheckResult, SolidOptions, check_mesh
 from .cache import CacheKey, ResultCache, settings_fingerprint
 
 #: File extensions taken from a folder (compared case-insensitively).
@@ -74,11 +75,13 @@ class FileJob:
     path : the file, as named in results and errors
     length_unit : unit of the file's coordinates
     content : the file's bytes, or ``None`` to read ``path`` where the task runs
+    check_options : for ``check``: strict, weld and volume tolerances (``None``: the defaults)
     """
 
     path: str
     length_unit: str
     content: bytes | None = None
+    check_options: SolidOptions | None = None
 
     def load(self):
         """The :class:`~meshprops.io.Mesh` (from ``content`` when shipped, else from ``path``)."""
@@ -95,7 +98,7 @@ def with_content(job: FileJob) -> FileJob:
     """
     try:
         with open(job.path, "rb") as handle:
-            return FileJob(job.path, job.length_unit, handle.read())
+            return FileJob(job.path, job.length_unit, handle.read(), job.check_options)
     except OSError:
         return job
 
@@ -215,7 +218,12 @@ def run_cached_files(
 
 def check_settings_key(job: FileJob) -> str:
     """What a ``check`` result depends on besides the file's content: its length unit."""
-    return settings_fingerprint("check", {"length_unit": job.length_unit})
+    options = job.check_options or SolidOptions()
+    return settings_fingerprint(
+        "check",
+        {"length_unit": job.length_unit, "strict": options.strict, "weld_tolerance": options.weld_tolerance,
+         "volume_tolerance": options.volume_tolerance},
+    )  # fmt: skip
 
 
 def measure_settings_key(options: MeasureOptions) -> str:
@@ -232,12 +240,12 @@ def raise_first_error(outcomes: Sequence[FileOutcome]) -> list:
     return [outcome.result for outcome in outcomes]
 
 
-def check_task(item: tuple[str, str] | FileJob) -> CheckResult:
+def check_task(item: tuple[str, str] | FileJob, options: SolidOptions | None = None) -> CheckResult:
     """Load one ``(path, length_unit)`` (or :class:`FileJob`) and run every check on it."""
     if isinstance(item, FileJob):
-        return check_mesh(item.load())
+        return check_mesh(item.load(), item.check_options)
     path, unit = item
-    return check_mesh(load_mesh(path, unit))
+    return check_mesh(load_mesh(path, unit), options)
 
 
 def check_inputs(paths, length_unit: str = "mm") -> list[tuple[str, str]]:
@@ -255,12 +263,14 @@ def check_inputs(paths, length_unit: str = "mm") -> list[tuple[str, str]]:
     return list(dict.fromkeys(files))
 
 
-def check_files(paths, length_unit: str = "mm") -> list[CheckResult]:
+def check_files(paths, length_unit: str = "mm", options: SolidOptions | None = None) -> list[CheckResult]:
     """Check every file (or manifest's meshes); an unreadable one raises its error.
 
-    A file used by several bodies of a manifest is checked once.
+    A file used by several bodies of a manifest is checked once. ``options``: how far the
+    solid may be recovered (:class:`meshprops.validation.solid.SolidOptions`).
     """
-    return raise_first_error(run_files(check_inputs(paths, length_unit), check_task, label=lambda item: item[0]))
+    task = check_task if options is None else functools.partial(check_task, options=options)
+    return raise_first_error(run_files(check_inputs(paths, length_unit), task, label=lambda item: item[0]))
 
 
 def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: str = "report") -> list[BodyMeasurement]:

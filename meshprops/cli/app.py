@@ -33,6 +33,18 @@ def say(message: str) -> None:
     print(f"meshprops: {message}", file=sys.stderr)
 
 
+def announce_first_compile() -> None:
+    """Say so before the self-intersection kernels compile for the first time (once, then cached)."""
+    from ..geometry.crossing import COMPILED_FROM_FACES, kernel_cache
+
+    cache = kernel_cache()
+    if not cache.warm:
+        say(
+            f"the self-intersection kernels for meshes of {COMPILED_FROM_FACES:,} faces or more are not compiled yet: "
+            f"the first such mesh takes 20-40 s longer (once; then cached in {cache.folder})"
+        )
+
+
 def write_report(text: str, output) -> None:
     """The report to ``output`` (atomically: never half-written), or to stdout."""
     from ..io.atomic import write_atomically

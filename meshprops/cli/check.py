@@ -15,7 +15,7 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, EXIT_USAGE, InputValueError
-from .app import app, one_line_errors, say, write_report
+from .app import announce_first_compile, app, one_line_errors, say, write_report
 from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, run_records
 
 
@@ -34,6 +34,9 @@ def check(
     ship_content: ShipContent = False,
     cache: CachePath = None,
     json_lines: JsonLines = False,
+    strict: Annotated[bool, typer.Option("--strict", help="Recover nothing (no crack closing, shell union or bounded crossings): every imperfection is an error.")] = False,
+    weld_tolerance: Annotated[Optional[float], typer.Option("--weld-tolerance", help="Largest crack closed, in the mesh unit (default 1e-6 of the bounding-box diagonal; 0 turns it off).")] = None,
+    volume_tolerance: Annotated[float, typer.Option("--volume-tolerance", help="Largest bound on the volume effect of faces crossing their own shell, as a fraction of the volume.")] = 1e-6,
 ) -> None:
     """Validate mesh files with every check (self-intersections included), apply the gate's
     rules, compare with the baseline and roll up the mass budget.
@@ -53,9 +56,17 @@ def check(
     if not given and not all_files:
         say("error: give mesh files or folders to check, or --all for every mesh under the current directory")
         raise typer.Exit(EXIT_USAGE)
+    from ..validation.solid import SolidOptions
+
+    solid = SolidOptions(strict=strict, weld_tolerance=weld_tolerance, volume_tolerance=volume_tolerance)
+    announce_first_compile()
     config, baseline = load_gate()
     if config is None and baseline is None and not all_files:
-        _plain_check(given, units or "mm", batch, json_output, output, html_report)
+        _plain_check(given, units or "mm", batch, json_output, output, html_report, solid)
+    if strict or weld_tolerance is not None or volume_tolerance != 1e-6:
+        raise InputValueError(
+            "--strict/--weld-tolerance/--volume-tolerance", "the plain check (not yet with the gate in force)", "given"
+        )
     if ship_content or cache is not None or json_lines:
         raise InputValueError(
             "--ship-content/--cache/--json-lines",
@@ -66,7 +77,7 @@ def check(
     _gate_check(given, config, baseline, units, density, all_files, batch, json_output, output, html_report)
 
 
-def _plain_check(given, units, batch, json_output, output, html_report) -> None:
+def _plain_check(given, units, batch, json_output, output, html_report, solid=None) -> None:
     """Every check on every file through the batch loop; no gate is in force. Exits."""
     from ..batch.runner import FileJob, check_inputs, check_settings_key, raise_first_error
     from ..output.gate import plain_gate_fields
@@ -75,7 +86,7 @@ def _plain_check(given, units, batch, json_output, output, html_report) -> None:
     from ..output.serialize import check_document_of
     from ..output.table import render_check_table
 
-    work = [FileJob(path, unit) for path, unit in check_inputs(given, units)]
+    work = [FileJob(path, unit, check_options=solid) for path, unit in check_inputs(given, units)]
     collected = [] if batch.json_lines and output is not None else None
     outcomes = run_records(work, check_record, check_settings_key, batch, description="check", collected=collected)
     if batch.json_lines:
@@ -89,7 +100,7 @@ def _plain_check(given, units, batch, json_output, output, html_report) -> None:
         if html_report is not None:  # the page draws each mesh: built here, from the files themselves
             from ..batch.runner import check_files
 
-            _write_html_report(check_files(given, units), html_report)
+            _write_html_report(check_files(given, units, solid), html_report)
     for record in records:
         line = first_error_line(record)
         if line is not None:

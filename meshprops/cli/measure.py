@@ -11,9 +11,10 @@ import typer
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..measure.options import MeasureOptions
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
-from .app import app, one_line_errors, say, write_report
+from .app import announce_first_compile, app, one_line_errors, say, write_report
 from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, emit_line, run_records
 from .options import angular_velocity, manifest_point, parse_vector
+from .solid_file import check_solid_target, write_integrated_solid
 
 SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
 
@@ -35,6 +36,10 @@ def measure(
     blocks_only: Annotated[bool, typer.Option("--blocks-only", help="With --format urdf|sdf|mjcf and a manifest: only the inertial blocks, not a complete model.")] = False,
     overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,
     output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
+    strict: Annotated[bool, typer.Option("--strict", help="Recover nothing (no crack closing, shell union or bounded crossings): refuse every imperfection, for a file certified exactly as exported.")] = False,
+    weld_tolerance: Annotated[Optional[float], typer.Option("--weld-tolerance", help="Largest crack closed, in the mesh unit (default 1e-6 of the bounding-box diagonal; 0 turns it off).")] = None,
+    volume_tolerance: Annotated[float, typer.Option("--volume-tolerance", help="Largest bound on the volume effect of faces crossing their own shell, as a fraction of the volume, for which numbers are given.")] = 1e-6,
+    write_solid: Annotated[Optional[Path], typer.Option("--write-solid", help="Write the surface actually integrated (binary STL, or PLY by extension) to this file; one mesh file only.")] = None,
     repair: Annotated[bool, typer.Option("--repair", help="Apply safe repairs first (reorient winding, flip inside-out shells and voids, drop degenerate and duplicate faces), each reported as a repaired_* warning. Holes are never filled.")] = False,
     total: Annotated[bool, typer.Option("--total", help="Also report the total of all the files as one rigid body (summed in input order: the same to the last bit in every mode).")] = False,
     jobs: Jobs = None,
@@ -68,7 +73,12 @@ def measure(
             )
         if repair:
             raise InputValueError("--repair", "mesh files (repair is not applied to an assembly manifest)", "a manifest")
-        options = MeasureOptions(angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples)
+        if write_solid is not None:
+            raise InputValueError("--write-solid", "one mesh file (not an assembly manifest)", str(write_solid))
+        options = MeasureOptions(
+            angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples, strict=strict,
+            weld_tolerance=weld_tolerance, volume_tolerance=volume_tolerance,
+        )  # fmt: skip
         _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only)
     units = units or DEFAULT_LENGTH_UNIT
     point = parse_vector(about, "--about")
@@ -79,7 +89,13 @@ def measure(
         angular_velocity=omega,
         com_velocity=com_velocity,
         repair=repair,
+        strict=strict,
+        weld_tolerance=weld_tolerance,
+        volume_tolerance=volume_tolerance,
     )
+    if write_solid is not None:
+        check_solid_target(write_solid, files)
+    announce_first_compile()
     work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
     settings_key = measure_settings_key(options)
     collected = [] if json_lines and output is not None else None
@@ -100,6 +116,10 @@ def measure(
     if any(record["density_assumed"] for record in records):
         say("no --density given: assumed 1000 kg/m^3 (water); masses and inertias scale with density")
     invalid = [record for record in records if not record["valid"]]
+    if write_solid is not None and records and not invalid:
+        from ..measure.body import measure_file
+
+        write_integrated_solid(write_solid, measure_file(str(files[0]), options, on_invalid="report"))
     for record in invalid:
         say(f"{record['source']}: {first_error_line(record)}")
     if any(not outcome.ok for outcome in outcomes):
@@ -121,6 +141,7 @@ def _measure_manifest(files, units, density, about, options, chosen, inertial_fo
     if density is not None:
         raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
     manifest = load_manifest(files[0])
+    announce_first_compile()
     result = measure_assembly(manifest, options, about=resolve_point(manifest, manifest_point(manifest, about)))
     doc = assembly_document(result)
     if chosen in SIMULATOR_FORMATS and not blocks_only:

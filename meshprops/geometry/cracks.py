@@ -4,7 +4,7 @@ An export that writes each patch of a surface on its own leaves the patches'
 shared seams with vertices a hair apart (often ~1e-7 of the part's size): the
 surface is closed to the eye but open to an exact weld. Merging the vertices of
 open edges that lie within a tolerance of each other closes such cracks. Only
-vertices on open edges move, each onto the lowest-numbered vertex of its group,
+vertices on open edges move, each onto the vertex of its group that most faces use,
 so every other vertex keeps its exact position; a face two of whose corners merge
 (a sliver spanning the crack) is dropped. No face is ever added: a gap wider than
 the tolerance, or a missing face, stays open.
@@ -142,8 +142,15 @@ def close_cracks(vertices: np.ndarray, faces: np.ndarray, tolerance: float) -> C
         parent = parent[parent]
         if np.array_equal(parent, before):
             break
+    # Each group keeps the position most faces use (ties: the lowest id): the corner an export wrote
+    # once, apart from the others, is the one that moves.
+    uses = np.bincount(faces.ravel(), minlength=vertices.shape[0])[boundary]
+    order = np.lexsort((boundary, -uses, parent))
+    first_of_group = np.r_[True, parent[order][1:] != parent[order][:-1]]
+    keeper = np.empty(boundary.size, dtype=np.int64)
+    keeper[parent[order][first_of_group]] = order[first_of_group]
     target = np.arange(vertices.shape[0])
-    target[boundary] = boundary[parent]
+    target[boundary] = boundary[keeper[parent]]
     moved = np.flatnonzero(target != np.arange(vertices.shape[0]))
     if moved.size == 0:
         return unchanged

@@ -6,8 +6,8 @@ much that can change the enclosed volume (:func:`crossing_volume_bound`).
 The kernels are compiled by numba on first use and cached on disk
 (``cache=True``: beside the kernel module in ``__pycache__``, or in
 ``NUMBA_CACHE_DIR`` / the user's cache folder when that is read-only). The first
-compile takes tens of seconds; it is announced once on stderr and never repeated
-while the cache stands. numba is imported only here, on first use, because its
+compile takes tens of seconds; the command line announces it (:func:`kernel_cache`),
+and it is never repeated while the cache stands. numba is imported only here, on first use, because its
 import alone costs ~0.4 s.
 
 Inputs are welded vertices and faces (never an (F, 3, 3) corner array: at 2M faces
@@ -33,7 +33,6 @@ not crossings.
 from __future__ import annotations
 
 import os
-import sys
 import time
 from dataclasses import dataclass
 
@@ -41,11 +40,11 @@ import numpy as np
 
 #: A face is entered in at most about this many grid cells on average (the cell grows until it holds).
 ENTRIES_PER_FACE = 4.0
+#: Below this many faces the rtree path answers (same pairs, tested to agree): loading numba and its
+#: cached kernels costs ~0.6-1 s per process, more than the rtree path's ~20 µs a face up to here.
+COMPILED_FROM_FACES = 30_000
 #: Relative tolerance of the narrow phase (as in the rtree-based check).
 RELATIVE_TOLERANCE = 1e-10
-
-_announced = False
-
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Crossings:
@@ -55,7 +54,8 @@ class Crossings:
     ----------
     pairs : (P, 2) int64 face numbers (first < second, rows sorted) whose interiors cross along a
         segment of positive length; faces sharing a vertex are never listed
-    coplanar_pairs : (Q, 2) int64 face numbers lying in one plane whose interiors overlap
+    coplanar_pairs : (Q, 2) int64 face numbers lying in one plane whose interiors overlap (only
+        from the compiled path: empty when ``coplanar_checked`` is false)
     cell_size : the broad phase's cell edge, in the corners' unit
     entries : (face, cell) entries of the grid
     seconds : wall time of the search (compile time excluded), s
@@ -66,6 +66,7 @@ class Crossings:
     cell_size: float
     entries: int
     seconds: float
+    coplanar_checked: bool = True
 
     @property
     def faces(self) -> np.ndarray:
@@ -74,21 +75,37 @@ class Crossings:
 
 
 def _kernels():
-    """The compiled kernels, importing numba on first use and announcing a first compile."""
-    global _announced
+    """The compiled kernels (numba is imported on first use)."""
     from meshprops.geometry import crossing_kernels as kernels
 
-    if not _announced:
-        _announced = True
-        if not _cache_is_warm(kernels.grid_pairs):
-            where = _cache_folder(kernels.grid_pairs)
-            print(
-                "meshprops: compiling the self-intersection kernels once (about 20-40 s); "
-                f"they are cached in {where} for later runs",
-                file=sys.stderr,
-                flush=True,
-            )
     return kernels
+
+
+def kernel_cache() -> KernelCache:
+    """Whether the compiled kernels are in numba's on-disk cache, and where it is (without importing numba).
+
+    The command line asks before its first measurement and announces a first compile
+    (tens of seconds, once); nothing below the output layer prints. Best effort: an
+    index file of the main kernel newer than the kernels' source counts as warm.
+    """
+    source = os.path.join(os.path.dirname(os.path.abspath(__file__)), "crossing_kernels.py")
+    folders = [os.environ["NUMBA_CACHE_DIR"]] if os.environ.get("NUMBA_CACHE_DIR") else []
+    folders.append(os.path.join(os.path.dirname(source), "__pycache__"))
+    for folder in folders:
+        for root, _, names in os.walk(folder):
+            for name in names:
+                if name.startswith("crossing_kernels.grid_pairs-") and name.endswith(".nbi"):
+                    if os.path.getmtime(os.path.join(root, name)) >= os.path.getmtime(source):
+                        return KernelCache(True, root)
+    return KernelCache(False, folders[0])
+
+
+@dataclass(frozen=True, slots=True, eq=False)
+class KernelCache:
+    """``warm``: the kernels load from disk; ``folder``: where numba keeps them."""
+
+    warm: bool
+    folder: str
 
 
 def _cache_folder(dispatcher) -> str:
@@ -138,6 +155,7 @@ def find_crossings(
     *,
     relative_tolerance: float = RELATIVE_TOLERANCE,
     include_vertex_neighbours: bool = False,
+    force_compiled: bool = False,
 ) -> Crossings:
     """Every pair of faces whose interiors cross, and every coplanar pair whose interiors overlap.
 
@@ -152,6 +170,8 @@ def find_crossings(
     include_vertex_neighbours : also test pairs sharing exactly one vertex (two such faces can
         still cross along a segment from that vertex: a fold). Off by default, as in the
         rtree-based check; the volume bound turns it on.
+    force_compiled : use the compiled path below :data:`COMPILED_FROM_FACES` faces too (it alone
+        also finds coplanar overlaps)
 
     Returns
     -------
@@ -163,8 +183,13 @@ def find_crossings(
     empty = np.zeros((0, 2), dtype=np.int64)
     if count < 2:
         return Crossings(empty, empty, 0.0, 0, 0.0)
-    kernels = _kernels()
     started = time.perf_counter()
+    if count < COMPILED_FROM_FACES and not include_vertex_neighbours and not force_compiled:
+        from .intersections import crossing_pairs_of
+
+        pairs = _sorted_rows(np.sort(crossing_pairs_of(vertices[faces], faces), axis=1))
+        return Crossings(pairs, empty, 0.0, 0, time.perf_counter() - started, coplanar_checked=False)
+    kernels = _kernels()
     low, high = kernels.face_boxes(vertices, faces)
     size, origin, counts = _cell_size(low, high, vertices, kernels)
     top = np.floor((vertices.max(axis=0) - origin) / size).astype(np.int64) + 1
@@ -176,7 +201,6 @@ def find_crossings(
     buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 2.0))))
     starts, member_keys, members = kernels.group_by_bucket(keys, members, buckets)
     del keys
-    kernels.sort_buckets(starts, member_keys, members, low)
     first, second, kind = kernels.grid_pairs(
         member_keys, starts, members, vertices, faces, low, high, origin, size, dims, relative_tolerance,
         2 if include_vertex_neighbours else 1,

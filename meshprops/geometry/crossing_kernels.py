@@ -169,7 +169,7 @@ def _plane_interval(t, distance, line):
     return low, high
 
 
-@njit(cache=True, parallel=True)
+@njit(cache=True)
 def face_boxes(vertices, faces):
     """(F, 3) lowest and highest corner coordinates of each face."""
     count = faces.shape[0]
@@ -185,7 +185,7 @@ def face_boxes(vertices, faces):
     return low, high
 
 
-@njit(cache=True, parallel=True)
+@njit(cache=True)
 def cell_entry_counts(low, high, origin, cell_size):
     """(F,) int64 number of grid cells each face's bounding box overlaps."""
     count = low.shape[0]
@@ -200,7 +200,7 @@ def cell_entry_counts(low, high, origin, cell_size):
     return out
 
 
-@njit(cache=True, parallel=True)
+@njit(cache=True)
 def cell_entries(low, high, origin, cell_size, dims, offsets):
     """Linear cell key of every (face, cell) entry; ``offsets`` (F + 1,) from the counts."""
     count = low.shape[0]
@@ -254,14 +254,14 @@ def group_by_bucket(keys, faces, bucket_count):
     return starts, member_keys, member_faces
 
 
-@njit(cache=True, parallel=True)
-def sort_buckets(starts, member_keys, member_faces, low):
-    """Sort each bucket by (cell key, lowest x of the face's box), in place (insertion sort: buckets are small).
+@njit(cache=True)
+def sort_bucket(b, starts, member_keys, member_faces, low):
+    """Sort bucket ``b`` by (cell key, lowest x of the face's box), in place (insertion sort: buckets are small).
 
     The pair loop then sweeps along x within a cell and stops at the first face that
     starts beyond the current one's end.
     """
-    for b in prange(starts.shape[0] - 1):
+    if True:
         begin = starts[b]
         end = starts[b + 1]
         for p in range(begin + 1, end):
@@ -338,6 +338,7 @@ def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin,
     dummy_kind = np.empty(0, dtype=np.int8)
     for c in prange(cells):
         if starts[c + 1] - starts[c] > 1:
+            sort_bucket(c, starts, member_keys, members, low)
             counts[c + 1] = _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin,
                                         cell_size, dims, tolerance, skip_shared, dummy, dummy, dummy_kind, 0,
                                         False)  # fmt: skip

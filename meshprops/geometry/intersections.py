@@ -80,13 +80,19 @@ def self_intersection_pairs(mesh: Mesh, topology: Topology, *, block: int = 20_0
     arrays and queried in blocks with ``intersection_v``. Narrow phase:
     :func:`triangles_cross`.
     """
-    from rtree import index  # lazily: only this check needs it
-
-    faces = topology.face_vertices
-    count = mesh.face_count
-    if count < 2:
+    if mesh.face_count < 2:
         return np.zeros((0, 2), dtype=np.int64)
     corners = np.concatenate([block for _, block in face_blocks(mesh)])
+    return crossing_pairs_of(corners, topology.face_vertices, block=block)
+
+
+def crossing_pairs_of(corners: np.ndarray, faces: np.ndarray, *, block: int = 20_000) -> np.ndarray:
+    """:func:`self_intersection_pairs` of (F, 3, 3) float64 ``corners`` with (F, 3) vertex ids ``faces``."""
+    from rtree import index  # lazily: only this check needs it
+
+    count = corners.shape[0]
+    if count < 2:
+        return np.zeros((0, 2), dtype=np.int64)
     low, high = corner_extreme(np.minimum, corners), corner_extreme(np.maximum, corners)
     properties = index.Property()
     properties.dimension = 3

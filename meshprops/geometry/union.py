@@ -112,7 +112,7 @@ def union_of_shells(
         near the part
     faces : (F, 3) int vertex indices; every shell closed and consistently oriented
     shell_of_face : (F,) int dense shell labels 0..S-1 (−1: face ignored, e.g. a flat shell)
-    shell_volume : (S,) signed volume of each shell (> 0 outward, < 0 a void), any unit cubed
+    shell_volume : (S,) signed volume of each shell (> 0 outward, < 0 a void, 0 ignored), any unit cubed
         (only its sign is used, and its sum is reported in the same unit)
     shell_depth : (S,) int how many other shells wholly enclose each shell
     shared_volumes : also compute each shell's shared volume (one boolean per shell)
@@ -140,14 +140,18 @@ def union_of_shells(
     solids = []
     for shell in range(count):
         shell_faces = faces[order[bounds[shell] : bounds[shell + 1]]]
+        if shell_volume[shell] == 0 or shell_faces.shape[0] == 0:  # a flat shell encloses nothing
+            solids.append(manifold3d.Manifold())
+            continue
         if shell_volume[shell] < 0:
             shell_faces = shell_faces[:, ::-1]  # a void, turned into the solid it removes
         solids.append(_solid(manifold3d, vertices, shell_faces, shell))
     outward = shell_volume > 0
+    present = shell_volume != 0
     result = manifold3d.Manifold()
     for depth in np.unique(shell_depth):
         level = shell_depth == depth
-        voids = [solids[s] for s in np.flatnonzero(level & ~outward)]
+        voids = [solids[s] for s in np.flatnonzero(level & ~outward & present)]
         if voids:
             result = result - _union(manifold3d, voids)
         adds = [solids[s] for s in np.flatnonzero(level & outward)]
@@ -155,7 +159,7 @@ def union_of_shells(
             result = _union(manifold3d, [result, *adds]) if not result.is_empty() else _union(manifold3d, adds)
     shared = np.full(count, np.nan)
     if shared_volumes and count <= SHARED_VOLUME_SHELL_LIMIT:
-        for group in (outward, ~outward):
+        for group in (outward, ~outward & present):
             members = np.flatnonzero(group)
             for shell in members:
                 others = [solids[s] for s in members if s != shell]

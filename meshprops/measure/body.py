@@ -17,10 +17,10 @@ import numpy as np
 from ..errors import InputValueError, InvalidMeshError
 from ..io import Mesh, load_mesh
 from ..physics.mass import MassProperties, check_density
-from ..physics.moments import integrate_mesh
+from ..physics.moments import Moments
 from ..physics.principal import PrincipalFrame, principal_frame
 from ..physics.spin import SpinState, spin
-from ..validation.checks import validate
+from ..validation.solid import Solid, resolve_solid
 from ..validation.findings import ERROR, Finding, ValidationReport
 from .options import DEFAULT_DENSITY, MeasureOptions
 
@@ -44,6 +44,10 @@ class BodyMeasurement:
     point : (3,) m, the point ``inertia_about_point`` refers to, or ``None``
     inertia_about_point : (3, 3) kg·m² in the input axes, or ``None``
     spin : dynamics for the requested angular velocity, or ``None``
+    shell_sum : mass properties of the plain sum of the mesh's shells (every shell added, voids
+        subtracted), or ``None``; they differ from ``properties`` where the solid was recovered
+        (a shell union, closed cracks)
+    solid : the validated solid (the surface actually integrated, for ``--write-solid``), or ``None``
     """
 
     source: str
@@ -59,6 +63,8 @@ class BodyMeasurement:
     point: np.ndarray | None = None
     inertia_about_point: np.ndarray | None = None
     spin: SpinState | None = None
+    shell_sum: MassProperties | None = None
+    solid: Solid | None = None
 
     @property
     def valid(self) -> bool:
@@ -114,8 +120,8 @@ def measure_mesh(
 
         repaired = repair_mesh(mesh)
     measured = repaired.mesh if repaired is not None else mesh
-    moments = integrate_mesh(measured)
-    report = validate(measured, moments)
+    solid = resolve_solid(measured, options.solid_options(), density=density)
+    report = solid.report
     if repaired is not None:  # locate every finding in the file as read
         report = replace(report, findings=repaired.findings + repaired.remap(report.findings))
     base = BodyMeasurement(
@@ -129,11 +135,12 @@ def measure_mesh(
         density_assumed=density_assumed,
         properties=None,
         principal=None,
+        solid=solid,
     )
     if not report.valid:
         return _invalid(base, on_invalid)
 
-    properties = MassProperties.from_moments(moments, density)
+    properties = MassProperties.from_moments(solid.moments, density)
     frame = principal_frame(properties.inertia_about_com)
     if not frame.satisfies_triangle_inequality:
         impossible = Finding(
@@ -153,7 +160,13 @@ def measure_mesh(
         point=point,
         inertia_about_point=properties.inertia_about(point) if point is not None else None,
         spin=spin(properties, omega, com_velocity=options.com_velocity, point=point) if omega is not None else None,
+        shell_sum=_shell_sum(solid.shell_sum, density),
     )
+
+
+def _shell_sum(moments: Moments, density: float) -> MassProperties | None:
+    """Mass properties of the plain shell sum (``None`` when it encloses no positive volume)."""
+    return MassProperties.from_moments(moments, density) if moments.volume > 0 else None
 
 
 def _invalid(measurement: BodyMeasurement, on_invalid: str) -> BodyMeasurement:

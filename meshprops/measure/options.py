@@ -13,6 +13,7 @@ import numpy as np
 
 from ..errors import InputValueError
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
+from ..validation.solid import VOLUME_TOLERANCE_RELATIVE, SolidOptions
 from .overlap import DEFAULT_SAMPLES
 
 #: Density used when none is given (water, 1000 kg/m³; the default of common simulators
@@ -47,6 +48,12 @@ class MeasureOptions:
     com_velocity : (3,) m/s or ``None``, velocity of the centre of mass
     repair : apply the safe repairs first, each reported
     overlap_samples : assemblies: Monte-Carlo points per candidate pair (0 skips the check)
+    strict : recover nothing (no crack closing, no shell union, no bounded crossings): refuse
+        every imperfection, for a file that must be certified exactly as exported
+    weld_tolerance : largest crack closed, in the MESH's length unit; ``None``: 1e-6 of the
+        bounding-box diagonal; 0 turns crack closing off
+    volume_tolerance : largest bound on the volume effect of self-crossings within a shell,
+        as a fraction of the volume, for which numbers are given (default 1e-6)
     """
 
     length_unit: str = DEFAULT_LENGTH_UNIT
@@ -56,8 +63,12 @@ class MeasureOptions:
     com_velocity: np.ndarray | None = None
     repair: bool = False
     overlap_samples: int = DEFAULT_SAMPLES
+    strict: bool = False
+    weld_tolerance: float | None = None
+    volume_tolerance: float = VOLUME_TOLERANCE_RELATIVE
 
     def __post_init__(self) -> None:
+        self.solid_options()  # bad tolerances fail here, before any file is read
         metres_per(self.length_unit)  # an unknown unit fails here, before any file is read
         object.__setattr__(self, "about", _vector(self.about, "about point"))
         object.__setattr__(self, "angular_velocity", _vector(self.angular_velocity, "angular velocity"))
@@ -65,6 +76,10 @@ class MeasureOptions:
         samples = self.overlap_samples
         if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or samples < 0:
             raise InputValueError("overlap samples", "a whole number >= 0 (0 skips the overlap check)", samples)
+
+    def solid_options(self) -> SolidOptions:
+        """The validation settings among these options."""
+        return SolidOptions(self.strict, self.weld_tolerance, self.volume_tolerance)
 
     @classmethod
     def build(cls, options: MeasureOptions | None = None, **settings) -> MeasureOptions:

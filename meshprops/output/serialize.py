@@ -66,6 +66,7 @@ def finding_to_dict(finding: Finding) -> dict:
         "count": finding.count,
         "message": finding.message,
         "where": [dict(place) for place in finding.where],
+        "volume_change": finding.volume_change,
     }
 
 
@@ -107,6 +108,12 @@ def body_to_dict(body: BodyMeasurement) -> dict:
             "principal_axes_unique": list(frame.unique_axes) if frame else None,
             "triangle_inequality": frame.satisfies_triangle_inequality if frame else None,
         }
+    )
+    plain = body.shell_sum if properties else None
+    result["shell_sum"] = (
+        {"volume": plain.volume, "mass": plain.mass, "center_of_mass": vector_to_list(plain.center_of_mass)}
+        if plain is not None
+        else None
     )
     if body.inertia_about_point is not None:
         result["inertia_about_point"] = {"point": vector_to_list(body.point), "tensor": matrix_to_list(body.inertia_about_point)}

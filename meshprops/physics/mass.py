@@ -69,7 +69,10 @@ class MassProperties:
         volume = moments.volume
         offset = moments.first / volume  # centre of mass relative to the reference origin
         about_com = moments.second - volume * np.outer(offset, offset)
-        inertia = density * (np.trace(about_com) * np.eye(3) - about_com)
+        # Each diagonal entry from the other two second moments (I_xx = ∫y² + ∫z²), never as the
+        # trace minus ∫x²: for a long thin rod ∫x² dwarfs the others and the subtraction cancels digits.
+        diagonal = np.array([about_com[1, 1] + about_com[2, 2], about_com[0, 0] + about_com[2, 2], about_com[0, 0] + about_com[1, 1]])
+        inertia = density * (np.diag(diagonal) - (about_com - np.diag(np.diag(about_com))))
         return cls(
             mass=density * volume,
             volume=volume,

@@ -22,10 +22,9 @@ inside every measurement cost a few sorts of 64-bit keys on a closed mesh:
    one shell, each shell's signed volume and its winding number inside the
    others decide whether it is a correct void, an inside-out shell or a shell
    nested in solid material (:func:`shell_findings`).
-4. Self-intersections: an rtree broad phase over face bounding boxes and a
-   vectorized triangle-triangle interval test (:func:`self_intersection_findings`).
-   It costs about 20 µs per face, so inside ``measure`` it runs only up to
-   :data:`SELF_INTERSECTION_FACE_LIMIT` faces; ``meshprops check`` always runs it.
+4. Self-intersections: a uniform-grid broad phase and a compiled interval test
+   (:func:`meshprops.geometry.crossing.find_crossings`, numba), on every mesh of
+   every size, in ``measure`` and ``check`` alike.
 
 Severity is ``"error"`` when the numbers would be wrong and ``"warning"``
 otherwise; ``valid`` is false exactly when there is an error.
@@ -48,7 +47,7 @@ from ..geometry.faces import (
     reduce_by_label,
 )
 from ..geometry.inside import winding_numbers
-from ..geometry.intersections import self_intersection_pairs
+from ..geometry.crossing import Crossings, find_crossings
 from ..geometry.topology import (
     EdgeUse,
     boundary_loop_count,
@@ -67,10 +66,6 @@ from ..physics.moments import Moments
 from ..units import LENGTH_UNITS
 from .findings import ERROR, WARNING, WHERE_LIMIT, Finding, ValidationReport, where
 
-#: ``measure`` looks for self-intersections only in meshes with at most this many
-#: faces (the rtree broad phase costs about 20 µs per face on a 2-core machine,
-#: so 50,000 faces add about one second); above it a warning says it was not checked.
-SELF_INTERSECTION_FACE_LIMIT = 50_000
 
 
 #: A face is degenerate (zero area) when its height over its longest edge is below
@@ -473,24 +468,6 @@ def _first_face_of_shells(shells: Shells) -> np.ndarray:
     return first
 
 
-def self_intersection_findings(mesh: Mesh, topology: Topology) -> list[Finding]:
-    """``self_intersection`` (error) when faces that share no vertex cross each other."""
-    pairs = self_intersection_pairs(mesh, topology)
-    if pairs.size == 0:
-        return []
-    involved = np.unique(pairs)
-    return [
-        Finding(
-            "self_intersection",
-            ERROR,
-            int(involved.size),
-            f"{involved.size} faces cross other faces ({len(pairs)} crossing pair(s)): the surface passes "
-            "through itself, so some volume is counted twice or with the wrong sign",
-            where(pairs[:WHERE_LIMIT].reshape(-1), mesh, limit=2 * WHERE_LIMIT),
-        )
-    ]
-
-
 def unit_findings(mesh: Mesh, extent: np.ndarray) -> list[Finding]:
     """``implausible_size`` (warning) when the part's size suggests the declared unit is wrong.
 
@@ -521,39 +498,86 @@ def unit_findings(mesh: Mesh, extent: np.ndarray) -> list[Finding]:
     ]
 
 
-def validate(mesh: Mesh, moments: Moments, *, thorough: bool = False) -> ValidationReport:
-    """Check that ``mesh`` bounds a solid whose ``moments`` can be trusted.
+@dataclass(frozen=True, slots=True, eq=False)
+class MeshAnalysis:
+    """Everything the checks measured about one mesh, before any verdict on shells and crossings.
 
-    Parameters
+    Attributes
     ----------
-    mesh
-        The mesh as read.
-    moments
-        Its moments (signed total volume), from :func:`meshprops.physics.moments.integrate_chunks`.
-    thorough
-        ``False`` (inside ``measure``): the fast path; zero-area and duplicate faces
-        are looked for only when the edge test fails (a closed, consistently
-        oriented surface can hold duplicates only as opposite pairs, which
-        cancel exactly), and self-intersections only up to
-        :data:`SELF_INTERSECTION_FACE_LIMIT` faces. ``True`` (``meshprops check``):
-        every check on every mesh.
+    findings : edge, degenerate-face and duplicate findings (errors among them stop the shell analysis)
+    topology : the exact weld
+    box : (2, 3) bounding box, file unit
+    extent : (3,) bounding-box size, m
+    shell_of_face : (F,) int dense shell labels (edge-connected patches; −1 for collapsed faces)
+    shell_count : number of shells
+    shells : per-shell volumes and nesting, or ``None`` (one shell, or an edge error)
+    reference : (3,) a point near the part, file unit
+    positions : (V, 3) float64 welded vertex positions relative to ``reference``, file unit
+    crossings : faces whose interiors cross (:func:`meshprops.geometry.crossing.find_crossings`)
+    edge_count : undirected edges
+    holes : boundary loops
+    """
 
-    Errors: ``open_edges``, ``nonmanifold_edges``, ``inconsistent_winding``,
-    ``non_orientable``, ``duplicate_faces`` (same winding), ``inside_out``,
-    ``inverted_shell``, ``nested_shell``, ``self_intersection``, ``no_volume``.
-    Warnings: ``collapsed_faces``, ``zero_area_faces``, ``duplicate_faces``
-    (cancelling pairs), ``near_coincident_vertices``, ``flat_shell``,
-    ``implausible_size``, ``nesting_not_checked``, ``self_intersection_not_checked``.
+    findings: tuple[Finding, ...]
+    topology: Topology
+    box: np.ndarray
+    extent: np.ndarray
+    shell_of_face: np.ndarray
+    shell_count: int
+    shells: Shells | None
+    reference: np.ndarray
+    positions: np.ndarray
+    crossings: Crossings
+    edge_count: int
+    holes: int
+
+    @property
+    def edge_error(self) -> bool:
+        return any(f.severity == ERROR for f in self.findings)
+
+
+def welded_positions(mesh: Mesh, topology: Topology, reference: np.ndarray) -> np.ndarray:
+    """(V, 3) float64 position of each welded vertex id relative to ``reference`` (file unit)."""
+    corner = first_use(topology)
+    used = corner < 3 * mesh.face_count
+    positions = np.zeros((topology.id_bound, 3))
+    corners = corner[used]
+    face, k = corners // 3, corners % 3
+    positions[used] = face_corners(mesh, face)[np.arange(face.size), k] - reference
+    return positions
+
+
+def _one_vertex_connected_piece(topology: Topology) -> bool:
+    labels, count = vertex_shells(topology)
+    return count == 1
+
+
+def _six_volume_sign(mesh: Mesh) -> float:
+    """Six times the signed volume enclosed (file unit cubed, about the first corner): its sign only."""
+    total = 0.0
+    origin = None
+    for _, block in face_blocks(mesh):
+        if origin is None:
+            origin = block[0, 0].copy()
+        corners = block - origin
+        total += float(np.einsum("ij,ij->i", corners[:, 0], np.cross(corners[:, 1], corners[:, 2])).sum())
+    return total
+
+
+def analyse_mesh(mesh: Mesh, volume: float | None = None) -> MeshAnalysis:
+    """Every check's measurements on ``mesh``: the same work for ``measure`` and ``check``.
+
+    ``volume``: the signed volume already integrated (any unit; its sign spares a pass).
     """
     topology, box = weld_with_box(mesh)
     findings: list[Finding] = []
-    extra: dict = {"holes": 0}
+    holes = 0
     extent = (box[1] - box[0]) * mesh.metres_per_unit
     closed = is_closed_and_oriented(topology)
+    uses = None
     if closed:
         edge_count = mesh.face_count * 3 // 2  # a closed, consistent surface has 3F/2 edges
-        if thorough:
-            findings.extend(duplicate_findings(mesh, topology))
+        findings.extend(duplicate_findings(mesh, topology))
     else:
         collapsed = collapsed_faces(topology)
         if collapsed.size:
@@ -568,51 +592,105 @@ def validate(mesh: Mesh, moments: Moments, *, thorough: bool = False) -> Validat
             )
         uses = edge_uses(topology)
         edge_count = int(uses.uses.size)
-        edge_list, extra["holes"] = _classify_edges(mesh, topology, uses)
+        edge_list, holes = _classify_edges(mesh, topology, uses)
         findings.extend(edge_list)
         findings.extend(duplicate_findings(mesh, topology))
-    if not closed or thorough:
-        diagonal = float(np.linalg.norm(extent)) / mesh.metres_per_unit
-        slivers = zero_area_faces(mesh, topology, diagonal)
-        if slivers.size:
-            findings.append(
-                Finding(
-                    "zero_area_faces",
-                    WARNING,
-                    int(slivers.size),
-                    f"{slivers.size} face(s) have collinear corners (zero area); they enclose nothing",
-                    where(slivers, mesh),
-                )
-            )
-    if thorough:
-        shell_of_face, shell_count = patch_shells(topology, uses if not closed else None)
-    else:
-        shell_of_face, shell_count = vertex_shells(topology)
-    extra["shells"] = shell_count
-    if not any(f.severity == ERROR for f in findings):
-        if shell_count <= 1:
-            findings.extend(_volume_findings(mesh, moments, extent))
-            extra["voids"] = 0
-        else:
-            shells = analyse_shells(mesh, shell_of_face, shell_count, box=box)
-            findings.extend(shell_findings(mesh, shells))
-            extra["voids"] = int(np.count_nonzero((shells.volume < 0) & (shells.enclosing == 1) & ~shells.flat))
-    if thorough or mesh.face_count <= SELF_INTERSECTION_FACE_LIMIT:
-        findings.extend(self_intersection_findings(mesh, topology))
-        extra["self_intersections_checked"] = True
-    else:
-        extra["self_intersections_checked"] = False
+    diagonal = float(np.linalg.norm(extent)) / mesh.metres_per_unit
+    slivers = zero_area_faces(mesh, topology, diagonal)
+    if slivers.size:
         findings.append(
             Finding(
-                "self_intersection_not_checked",
+                "zero_area_faces",
                 WARNING,
-                mesh.face_count,
-                f"self-intersections were not checked: {mesh.face_count} faces is above the measure limit of "
-                f"{SELF_INTERSECTION_FACE_LIMIT}; run 'meshprops check' on this file",
+                int(slivers.size),
+                f"{slivers.size} face(s) have collinear corners (zero area); they enclose nothing",
+                where(slivers, mesh),
             )
         )
-    findings.extend(unit_findings(mesh, extent))
-    return ValidationReport(tuple(findings), mesh.face_count, topology.vertex_count, edge_count, extra)
+    shell_of_face, shell_count = None, 0
+    if closed and _one_vertex_connected_piece(topology):
+        # A closed, consistently oriented surface that is one vertex-connected piece: one shell,
+        # unless two solids touch at a lone vertex; the cheap sufficient test answers first, and
+        # only a non-positive volume (an inside-out piece touching another) asks for the patches.
+        if (volume if volume is not None else _six_volume_sign(mesh)) > 0:
+            shell_of_face, shell_count = np.zeros(mesh.face_count, dtype=np.int32), 1
+    if shell_of_face is None:
+        shell_of_face, shell_count = patch_shells(topology, uses)
+    shells = None
+    if shell_count > 1 and not any(f.severity == ERROR for f in findings):
+        shells = analyse_shells(mesh, shell_of_face, shell_count, box=box)
+    reference = mesh.reference_point()
+    positions = welded_positions(mesh, topology, reference)
+    crossings = find_crossings(positions, topology.face_vertices)
+    return MeshAnalysis(
+        tuple(findings), topology, box, extent, shell_of_face, shell_count, shells, reference, positions,
+        crossings, edge_count, holes,
+    )  # fmt: skip
+
+
+def validate(mesh: Mesh, moments: Moments, analysis: MeshAnalysis | None = None) -> ValidationReport:
+    """Check that ``mesh`` bounds a solid whose ``moments`` can be trusted, exactly as exported.
+
+    This is the strict verdict (``--strict``): every imperfection that could change the
+    numbers is an error. :func:`meshprops.validation.solid.resolve_solid` gives the
+    default verdict, which recovers the solid where that can be done exactly or within a
+    stated bound. Both run the same checks on every mesh (:func:`analyse_mesh`), whatever
+    its size, so ``measure`` and ``check`` report the same findings.
+
+    Parameters
+    ----------
+    mesh
+        The mesh as read.
+    moments
+        Its moments (signed total volume), from :func:`meshprops.physics.moments.integrate_mesh`.
+    analysis
+        :func:`analyse_mesh` of ``mesh``, when already done.
+
+    Errors: ``open_edges``, ``nonmanifold_edges``, ``inconsistent_winding``,
+    ``non_orientable``, ``duplicate_faces`` (same winding), ``inside_out``,
+    ``inverted_shell``, ``nested_shell``, ``self_intersection``, ``no_volume``.
+    Warnings: ``collapsed_faces``, ``zero_area_faces``, ``duplicate_faces``
+    (cancelling pairs), ``near_coincident_vertices``, ``flat_shell``,
+    ``implausible_size``, ``nesting_not_checked``.
+    """
+    analysis = analyse_mesh(mesh, moments.volume) if analysis is None else analysis
+    findings = list(analysis.findings)
+    extra = base_extra(analysis)
+    if not analysis.edge_error:
+        if analysis.shells is None:
+            findings.extend(_volume_findings(mesh, moments, analysis.extent))
+        else:
+            findings.extend(shell_findings(mesh, analysis.shells))
+            extra["voids"] = count_voids(analysis.shells)
+    findings.extend(crossing_findings(mesh, analysis.crossings.pairs))
+    findings.extend(unit_findings(mesh, analysis.extent))
+    return ValidationReport(tuple(findings), mesh.face_count, analysis.topology.vertex_count, analysis.edge_count, extra)
+
+
+def base_extra(analysis: MeshAnalysis) -> dict:
+    """The report's mesh statistics (``extra``) known before any verdict."""
+    return {"holes": analysis.holes, "shells": analysis.shell_count, "voids": 0, "self_intersections_checked": True}
+
+
+def count_voids(shells: Shells) -> int:
+    return int(np.count_nonzero((shells.volume < 0) & (shells.enclosing == 1) & ~shells.flat))
+
+
+def crossing_findings(mesh: Mesh, pairs: np.ndarray, *, extra_message: str = "") -> list[Finding]:
+    """``self_intersection`` (error) when faces that share no vertex cross each other."""
+    if pairs.size == 0:
+        return []
+    involved = np.unique(pairs)
+    return [
+        Finding(
+            "self_intersection",
+            ERROR,
+            int(involved.size),
+            f"{involved.size} faces cross other faces ({len(pairs)} crossing pair(s)): the surface passes "
+            f"through itself, so some volume is counted twice or with the wrong sign{extra_message}",
+            where(pairs[:WHERE_LIMIT].reshape(-1), mesh, limit=2 * WHERE_LIMIT),
+        )
+    ]
 
 
 def _volume_findings(mesh: Mesh, moments: Moments, extent: np.ndarray | None = None) -> list[Finding]:
@@ -630,30 +708,3 @@ def _volume_findings(mesh: Mesh, moments: Moments, extent: np.ndarray | None = N
             )
         ]
     return []
-
-
-@dataclass(frozen=True, slots=True, eq=False)
-class CheckResult:
-    """The thorough validation of one mesh file (``meshprops check``).
-
-    Attributes
-    ----------
-    source, file_format, length_unit : as read
-    face_count : number of triangles in the file
-    report : every check (:func:`validate` with ``thorough=True``)
-    """
-
-    source: str
-    file_format: str
-    length_unit: str
-    face_count: int
-    report: ValidationReport
-
-
-def check_mesh(mesh: Mesh) -> CheckResult:
-    """Run every check on ``mesh``, self-intersections included whatever its size."""
-    from ..physics.moments import integrate_mesh
-
-    moments = integrate_mesh(mesh)
-    report = validate(mesh, moments, thorough=True)
-    return CheckResult(mesh.source, mesh.file_format, mesh.length_unit, mesh.face_count, report)

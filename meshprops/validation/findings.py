@@ -34,6 +34,8 @@ class Finding:
     message : one sentence for a person
     where : a few examples, each ``{"face": int, "point": [x, y, z]}`` (face index in the
         file as read, centroid in m, input axes)
+    volume_change : m³, the volume a recovery changed (the solid integrated minus the plain
+        sum of the shells; for ``crossing_bounded`` the bound), or ``None``
     """
 
     code: str
@@ -41,6 +43,7 @@ class Finding:
     count: int
     message: str
     where: tuple[dict, ...] = ()
+    volume_change: float | None = None
 
 
 @dataclass(frozen=True, slots=True, eq=False)

@@ -27,7 +27,7 @@ from meshprops import Mesh, MeshFileError, MeshpropsError, load_mesh, measure_me
 from meshprops.cli import app
 from meshprops.geometry import shapes
 from meshprops.io import writers
-from meshprops.validation.checks import check_mesh
+from meshprops.validation.solid import check_mesh
 
 
 def _seed_files() -> dict[str, bytes]:

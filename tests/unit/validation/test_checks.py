@@ -17,7 +17,8 @@ from meshprops.geometry import shapes
 from meshprops.io import writers
 from meshprops.physics.moments import integrate_chunks
 from meshprops.validation import checks as validation_checks
-from meshprops.validation.checks import check_mesh, validate
+from meshprops.validation.checks import validate
+from meshprops.validation.solid import SolidOptions, check_mesh, resolve_solid
 from meshprops.validation.findings import ERROR, WARNING
 
 CASES = catalogue.cases()
@@ -41,8 +42,11 @@ SEVERITY = {
     "near_coincident_vertices": WARNING,
     "flat_shell": WARNING,
     "implausible_size": WARNING,
-    "self_intersection_not_checked": WARNING,
     "nesting_not_checked": WARNING,
+    "cracks_closed": WARNING,
+    "shells_overlap": WARNING,
+    "crossing_bounded": WARNING,
+    "void_crosses_skin": ERROR,
 }
 
 
@@ -50,8 +54,8 @@ def _mesh(case):
     return mesh_from_arrays(case.vertices, case.faces, length_unit=case.length_unit, source=case.name)
 
 
-def _report(mesh, thorough=False):
-    return validate(mesh, integrate_chunks(mesh.triangle_chunks()), thorough=thorough)
+def _report(mesh):
+    return resolve_solid(mesh).report
 
 
 def _assert_findings(report, codes, where, folder):
@@ -122,15 +126,22 @@ def test_an_inch_part_read_as_millimetres_is_not_flagged_but_a_huge_inch_part_is
     assert "--units mm" in finding.message and "25.4 times smaller" in finding.message
 
 
-def test_measure_skips_self_intersections_above_the_limit_and_says_so(monkeypatch):
-    monkeypatch.setattr(validation_checks, "SELF_INTERSECTION_FACE_LIMIT", 11)
-    mesh = mesh_from_arrays(*catalogue._bow_tie())
-    fast = _report(mesh)
-    assert "self_intersection" not in {f.code for f in fast.findings}
-    skipped = [f for f in fast.findings if f.code == "self_intersection_not_checked"]
-    assert skipped and skipped[0].severity == WARNING and "meshprops check" in skipped[0].message
-    assert fast.extra["self_intersections_checked"] is False
-    assert "self_intersection" in {f.code for f in check_mesh(mesh).report.findings}
+def test_strict_refuses_what_the_default_recovers():
+    """--strict: the overlapping copy, the nested cube and the crack stay errors, as exported."""
+    expected = {
+        "chassis-plate-overlapping-copy": {"nested_shell", "self_intersection"},
+        "cube-with-a-nested-cube-wound-outward": {"nested_shell"},
+        "chassis-plate-cracked-corner": {"open_edges", "near_coincident_vertices"},
+        "torus-with-a-crossing-sliver": {"self_intersection"},
+    }
+    for case in CASES:
+        if case.name in expected:
+            mesh = _mesh(case)
+            strict = resolve_solid(mesh, SolidOptions(strict=True)).report
+            assert {f.code for f in strict.findings} == expected[case.name], case.name
+            assert not strict.valid
+            plain = validate(mesh, integrate_chunks(mesh.triangle_chunks()))
+            assert {f.code for f in plain.findings} == expected[case.name]
 
 
 def test_report_counts_shells_voids_and_holes():
@@ -142,12 +153,12 @@ def test_report_counts_shells_voids_and_holes():
     assert two_holes.vertex_count == 8 and two_holes.edge_count == 16
 
 
-def test_touching_solids_are_two_shells_in_check_and_an_inverted_one_is_found():
-    """Two cubes sharing one corner vertex, one inside-out: the fast path sees one vertex-connected
-    shell whose volumes cancel (no_volume); check separates edge-connected shells (inverted_shell)."""
+def test_touching_solids_are_two_shells_and_an_inverted_one_is_found():
+    """Two cubes sharing one corner vertex, one inside-out: edge-connected shells are separated
+    (inverted_shell), in measure and check alike."""
     vertices, faces = shapes.merge(shapes.box((1, 1, 1), (0.5, 0.5, 0.5)), shapes.box((1, 1, 1), (1.5, 1.5, 1.5), inward=True))
     mesh = mesh_from_arrays(vertices, faces, length_unit="m")
-    assert {f.code for f in _report(mesh).findings} == {"no_volume"}
+    assert {f.code for f in _report(mesh).findings} == {"inverted_shell"}
     thorough = check_mesh(mesh).report
     assert {f.code for f in thorough.findings} == {"inverted_shell"} and thorough.extra["shells"] == 2
 
@@ -192,7 +203,8 @@ def test_validation_of_tiny_and_flat_meshes_never_crashes():
     report = _report(one)
     assert not report.valid and "open_edges" in {f.code for f in report.findings}
     flat = mesh_from_triangles(np.array([[[0, 0, 0], [1, 0, 0], [0, 1, 0]], [[0, 0, 0], [0, 1, 0], [1, 0, 0]]], dtype=float))
-    assert {f.code for f in _report(flat).findings} == {"no_volume"}
+    # measure and check give the same findings (issue 8, item 6)
+    assert {f.code for f in _report(flat).findings} == {"no_volume", "duplicate_faces"}
     assert {f.code for f in check_mesh(flat).report.findings} == {"no_volume", "duplicate_faces"}
     point = mesh_from_triangles(np.zeros((2, 3, 3)))
     assert not check_mesh(point).report.valid

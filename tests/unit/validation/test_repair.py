@@ -31,7 +31,9 @@ DENSITY = 2700.0  # aluminium, kg/m^3 (common practice)
 
 CASES = catalogue.cases()
 REPAIRABLE = [c for c in CASES if c.solid]
-UNREPAIRABLE = [c for c in CASES if not c.solid]
+UNREPAIRABLE = [c for c in CASES if not c.solid and c.folder == "invalid"]
+#: Cases the default validation recovers without --repair (issue 8): valid, with warnings only.
+RECOVERED = [c for c in CASES if not c.solid and c.folder == "warnings"]
 
 
 def _measure(vertices, faces, unit="mm", repair=True):
@@ -68,6 +70,14 @@ def test_what_cannot_be_repaired_stays_an_error(case):
     errors = {f.code for f in body.findings if f.severity == ERROR}
     assert errors == {c for c in case.repaired_codes if c != "near_coincident_vertices"}
     assert "open_edges" not in {f.code for f in body.findings if f.code.startswith("repaired_")}
+
+
+@pytest.mark.parametrize("case", RECOVERED, ids=lambda c: c.name)
+def test_what_validation_recovers_stays_recovered_after_repair(case):
+    body = _measure(case.vertices, case.faces, case.length_unit)
+    assert body.valid, [(f.code, f.message) for f in body.findings]
+    assert {f.code for f in body.findings} == set(case.repaired_codes)
+    assert all(f.severity == WARNING for f in body.findings)
 
 
 def test_repair_findings_point_at_the_faces_of_the_file_as_read():
