@@ -179,3 +179,12 @@ def batch_options(request):
     if request.param == "processes":
         return ["--jobs", "2"]
     return ["--scheduler", request.getfixturevalue("dask_cluster").scheduler_address]
+
+
+@pytest.fixture(scope="session", autouse=True)
+def compiled_crossing_kernels():
+    """Compile (once per machine; then loaded from numba's cache) the self-intersection kernels before
+    any test, so that no command's output depends on whether this is the first run on a fresh clone."""
+    from meshprops.geometry.crossing import warm_up
+
+    warm_up()

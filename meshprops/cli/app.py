@@ -34,15 +34,10 @@ def say(message: str) -> None:
 
 
 def announce_first_compile() -> None:
-    """Say so before the self-intersection kernels compile for the first time (once, then cached)."""
-    from ..geometry.crossing import COMPILED_FROM_FACES, kernel_cache
+    """Have a first compile of the self-intersection kernels announced on stderr when it starts (once, then cached)."""
+    from ..geometry.crossing import on_first_compile
 
-    cache = kernel_cache()
-    if not cache.warm:
-        say(
-            f"the self-intersection kernels for meshes of {COMPILED_FROM_FACES:,} faces or more are not compiled yet: "
-            f"the first such mesh takes 20-40 s longer (once; then cached in {cache.folder})"
-        )
+    on_first_compile(say)
 
 
 def write_report(text: str, output) -> None:

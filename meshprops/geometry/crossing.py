@@ -6,8 +6,8 @@ much that can change the enclosed volume (:func:`crossing_volume_bound`).
 The kernels are compiled by numba on first use and cached on disk
 (``cache=True``: beside the kernel module in ``__pycache__``, or in
 ``NUMBA_CACHE_DIR`` / the user's cache folder when that is read-only). The first
-compile takes tens of seconds; the command line announces it (:func:`kernel_cache`),
-and it is never repeated while the cache stands. numba is imported only here, on first use, because its
+compile takes tens of seconds; the command line has it announced
+(:func:`on_first_compile`), and it is never repeated while the cache stands. numba is imported only here, on first use, because its
 import alone costs ~0.4 s.
 
 Inputs are welded vertices and faces (never an (F, 3, 3) corner array: at 2M faces
@@ -74,30 +74,37 @@ class Crossings:
         return np.unique(self.pairs)
 
 
+_notice = {"callback": None, "given": False}
+
+
+def on_first_compile(callback) -> None:
+    """Have ``callback(text)`` told, once per process, just before the kernels compile for the first time.
+
+    The command line passes its stderr writer; nothing in this layer prints.
+    """
+    _notice["callback"] = callback
+
+
 def _kernels():
-    """The compiled kernels (numba is imported on first use)."""
+    """The compiled kernels (numba is imported on first use; a first compile is announced)."""
     from meshprops.geometry import crossing_kernels as kernels
 
+    if not _notice["given"] and _notice["callback"] is not None:
+        _notice["given"] = True
+        cache = kernel_cache()
+        if not cache.warm:
+            _notice["callback"](
+                "compiling the self-intersection kernels once (about 20-40 s); "
+                f"they are cached in {cache.folder} for later runs"
+            )
     return kernels
 
 
 def kernel_cache() -> KernelCache:
-    """Whether the compiled kernels are in numba's on-disk cache, and where it is (without importing numba).
+    """Whether numba's on-disk cache holds the kernels for their current source, and where it is."""
+    from meshprops.geometry import crossing_kernels as kernels
 
-    The command line asks before its first measurement and announces a first compile
-    (tens of seconds, once); nothing below the output layer prints. Best effort: an
-    index file of the main kernel newer than the kernels' source counts as warm.
-    """
-    source = os.path.join(os.path.dirname(os.path.abspath(__file__)), "crossing_kernels.py")
-    folders = [os.environ["NUMBA_CACHE_DIR"]] if os.environ.get("NUMBA_CACHE_DIR") else []
-    folders.append(os.path.join(os.path.dirname(source), "__pycache__"))
-    for folder in folders:
-        for root, _, names in os.walk(folder):
-            for name in names:
-                if name.startswith("crossing_kernels.grid_pairs-") and name.endswith(".nbi"):
-                    if os.path.getmtime(os.path.join(root, name)) >= os.path.getmtime(source):
-                        return KernelCache(True, root)
-    return KernelCache(False, folders[0])
+    return KernelCache(_cache_is_warm(kernels.grid_pairs), _cache_folder(kernels.grid_pairs))
 
 
 @dataclass(frozen=True, slots=True, eq=False)

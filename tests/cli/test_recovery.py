@@ -104,29 +104,3 @@ def test_measure_and_check_report_the_same_findings():
         checked = json.loads(runner.invoke(app, ["check", str(path), "--json"]).stdout)
         measured = [(f["code"], f["count"]) for f in doc["bodies"][0]["findings"]]
         assert measured == [(f["code"], f["count"]) for f in checked["files"][0]["findings"]], path.name
-
-
-def test_write_solid_writes_the_surface_integrated(tmp_path):
-    source = WARNINGS / "shells_overlap__two-overlapping-cubes.stl"
-    target = tmp_path / "solid.stl"
-    result, doc = _measure(source, "--write-solid", target)
-    assert result.exit_code == 0, result.output
-    solid = load_mesh(target, "mm")
-    again, written = _measure(target)
-    assert again.exit_code == 0 and written["bodies"][0]["findings"] == []  # one closed shell now
-    assert written["bodies"][0]["volume"] == pytest.approx(doc["bodies"][0]["volume"], rel=1e-12)
-    assert solid.face_count > 0
-    ply = tmp_path / "solid.ply"
-    assert _measure(source, "--write-solid", ply)[0].exit_code == 0
-    assert load_mesh(ply, "mm").face_count == solid.face_count
-
-
-def test_write_solid_refuses_the_input_and_other_extensions(tmp_path):
-    source = tmp_path / "part.stl"
-    source.write_bytes((WARNINGS / "shells_overlap__two-overlapping-cubes.stl").read_bytes())
-    before = source.read_bytes()
-    result = runner.invoke(app, ["measure", str(source), "--write-solid", str(source)])
-    assert result.exit_code == 2 and "--write-solid" in result.stderr
-    assert source.read_bytes() == before
-    result = runner.invoke(app, ["measure", str(source), "--write-solid", str(tmp_path / "solid.obj")])
-    assert result.exit_code == 2

@@ -23,14 +23,14 @@ from meshprops.output.serialize import (
     matrix_to_list,
     vector_to_list,
 )
-from meshprops.validation.checks import check_mesh
+from meshprops.validation.solid import check_mesh
 from meshprops.validation.findings import WARNING, Finding
 from meshprops.version import __version__
 
 BODY_KEYS = {
     "source", "valid", "findings", "mesh", "density", "density_assumed", "volume", "mass", "center_of_mass",
     "inertia_about_com", "products_of_inertia", "radii_of_gyration", "principal_moments", "principal_axes",
-    "principal_symmetry", "principal_axes_unique", "triangle_inequality",
+    "principal_symmetry", "principal_axes_unique", "triangle_inequality", "shell_sum",
 }  # fmt: skip
 MESH_KEYS = {"format", "length_unit", "faces", "vertices", "edges", "shells", "voids", "holes"}
 
@@ -76,7 +76,7 @@ def test_finding_to_dict_copies_every_field():
     finding = Finding("zero_area_faces", WARNING, 2, "two slivers", ({"face": 3, "point": [0.0, 1.0, 2.0]},))
     data = finding_to_dict(finding)
     assert data == {"code": "zero_area_faces", "severity": "warning", "count": 2, "message": "two slivers",
-                    "where": [{"face": 3, "point": [0.0, 1.0, 2.0]}]}  # fmt: skip
+                    "where": [{"face": 3, "point": [0.0, 1.0, 2.0]}], "volume_change": None}  # fmt: skip
     assert data["where"][0] is not finding.where[0]  # a copy: changing the output cannot change the finding
 
 

@@ -12,7 +12,7 @@ from meshprops.io import mesh_from_arrays
 from meshprops.measure.body import measure_mesh
 from meshprops.output.serialize import CAUTIONS, body_to_dict, check_document, document, materials_document
 from meshprops.output.table import render_assembly_table, render_check_table, render_materials_table, render_table
-from meshprops.validation.checks import check_mesh
+from meshprops.validation.solid import check_mesh
 
 
 def _doc(**settings):
