@@ -182,15 +182,18 @@ def zero_area_faces(mesh: Mesh, topology: Topology, diagonal: float) -> np.ndarr
     resolution = np.finfo(mesh.soup.dtype if mesh.soup is not None else np.float64).eps
     for start, corners in face_blocks(mesh, SMALL_BLOCK_FACES):
         stop = start + corners.shape[0]
-        edges = corners[:, [1, 2, 0]] - corners
-        lengths = np.einsum("fki,fki->fk", edges, edges)
-        longest = np.sqrt(lengths.max(axis=1))
-        doubled_area = np.linalg.norm(np.cross(edges[:, 0], edges[:, 1]), axis=1)
-        height = np.divide(doubled_area, longest, out=np.zeros_like(longest), where=longest > 0)
-        tolerance = DEGENERATE_HEIGHT_RELATIVE * diagonal + 4.0 * resolution * np.abs(corners).max(axis=(1, 2))
+        a, b, c = corners[:, 0], corners[:, 1], corners[:, 2]
+        ab, bc, ca = b - a, c - b, a - c
+        lengths = np.maximum(np.maximum(np.einsum("fi,fi->f", ab, ab), np.einsum("fi,fi->f", bc, bc)), np.einsum("fi,fi->f", ca, ca))
+        normal = np.cross(ab, -ca)  # (b - a) x (c - a)
+        doubled_area = np.sqrt(np.einsum("fi,fi->f", normal, normal))
+        magnitude = corner_extreme(np.maximum, np.abs(corners)).max(axis=1)
+        tolerance = DEGENERATE_HEIGHT_RELATIVE * diagonal + 4.0 * resolution * magnitude
+        # height = doubled area / longest edge <= tolerance, without the division (a zero-length face has height 0)
+        thin = doubled_area <= tolerance * np.sqrt(lengths)
         block = faces[start:stop]
         distinct = (block[:, 0] != block[:, 1]) & (block[:, 1] != block[:, 2]) & (block[:, 2] != block[:, 0])
-        found.append(np.flatnonzero(distinct & (height <= tolerance)) + start)
+        found.append(np.flatnonzero(distinct & thin) + start)
     return np.concatenate(found) if found else np.zeros(0, dtype=np.int64)
 
 
