@@ -160,7 +160,7 @@ def _write_gate_html_report(report, target: Path) -> None:
     """``--report`` of a gate run: a file the gate skipped as unchanged is read and checked here,
     since drawing needs it; a baseline entry whose file is missing has no row."""
     from ..io import load_mesh
-    from ..validation.checks import check_mesh
+    from ..validation.solid import check_mesh
 
     results = []
     for outcome in report.files:

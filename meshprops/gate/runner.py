@@ -273,13 +273,12 @@ def measure_for_gate(path: str, length_unit: str, density: float) -> Measured:
 
     from ..io import load_mesh
     from ..physics.mass import MassProperties
-    from ..physics.moments import integrate_mesh
     from ..physics.principal import principal_frame
-    from ..validation.checks import validate
+    from ..validation.solid import resolve_solid
 
     mesh = load_mesh(path, length_unit)
-    moments = integrate_mesh(mesh)
-    report = validate(mesh, moments, thorough=True)
+    solid = resolve_solid(mesh, density=density)  # the same verdict and solid as measure and check
+    report, moments = solid.report, solid.moments
     numbers = None
     if report.valid:
         properties = MassProperties.from_moments(moments, density)
