@@ -66,7 +66,8 @@ class UnitError(MeshpropsError, ValueError):
     def __init__(self, unit: str, known: tuple[str, ...], *, source: str | None = None) -> None:
         self.unit = unit
         self.known = known
-        super().__init__(f"unknown unit {unit!r}; expected one of {', '.join(known)}", source=source)
+        what = "an empty unit" if not str(unit).strip() else f"unknown unit {unit!r}"
+        super().__init__(f"{what}; expected one of {', '.join(known)}", source=source)
 
 
 class InputValueError(MeshpropsError, ValueError):
@@ -105,6 +106,18 @@ class PhysicsError(MeshpropsError, ValueError):
     principal moment or a violated triangle inequality)."""
 
     exit_code = EXIT_INVALID
+
+
+class NonFiniteResultError(MeshpropsError, OverflowError):
+    """A computed number overflowed double precision (``inf`` or ``NaN``): the body is refused.
+
+    ``quantity`` names the first number that is not finite (``mass``, ``spin.kinetic_energy``).
+    Bad input in practice (a unit or density slip, or an absurd spin), hence the usage exit code.
+    """
+
+    def __init__(self, quantity: str, message: str, *, source: str | None = None) -> None:
+        self.quantity = quantity
+        super().__init__(message, source=source)
 
 
 class ManifestError(MeshpropsError, ValueError):

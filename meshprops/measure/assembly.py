@@ -10,6 +10,7 @@ import numpy as np
 
 from ..errors import InputValueError, MeshFileError, UnitError
 from ..io import Mesh, load_mesh
+from ..physics.finite import require_finite
 from ..physics.mass import MassProperties, combine
 from ..physics.plausibility import (
     Plausibility,
@@ -18,6 +19,7 @@ from ..physics.plausibility import (
 )
 from ..physics.principal import PrincipalFrame, principal_frame
 from ..physics.spin import spin
+from ..validation.density import density_findings
 from ..validation.findings import ERROR, WARNING, Finding, ValidationReport
 from .body import BodyMeasurement, measure_mesh
 from .manifest import (
@@ -191,7 +193,10 @@ def _measure_body(manifest: Manifest, spec: BodySpec, reader: ManifestReader, ca
         # Measured at unit density, then scaled: mass and inertia are linear in the density.
         cache[spec.mesh_path, spec.length_unit] = (mesh, measure_mesh(mesh, density=1.0, on_invalid="report"))
     mesh, unit = cache[spec.mesh_path, spec.length_unit]
-    unit = replace(unit, name=spec.name)
+    # The unit-density measurement's density finding is about 1 kg/m^3, not this body's density.
+    unit = replace(unit, name=spec.name, validation=replace(
+        unit.validation, findings=tuple(f for f in unit.findings if f.code != "implausible_density")
+    ))  # fmt: skip
     basis = "measured_mass" if spec.measured_mass is not None else ("material" if spec.material else "density")
     if not unit.valid:
         density = spec.density
@@ -199,9 +204,11 @@ def _measure_body(manifest: Manifest, spec: BodySpec, reader: ManifestReader, ca
         return AssemblyItem(spec.name, "mesh", measurement, None, spec.placement, spec, basis, None, None, mesh)
     volume = unit.properties.volume
     density = spec.measured_mass / volume if spec.measured_mass is not None else spec.density
-    local = MassProperties(density * volume, volume, unit.properties.center_of_mass, density * unit.properties.inertia_about_com)
-    placed = local.moved(spec.placement.rotation, spec.placement.translation)
-    findings = unit.findings
+    with np.errstate(over="ignore", invalid="ignore"):  # an overflow is refused just below, by name
+        local = MassProperties(density * volume, volume, unit.properties.center_of_mass, density * unit.properties.inertia_about_com)
+        placed = local.moved(spec.placement.rotation, spec.placement.translation)
+    require_finite(placed, source=spec.mesh_path)
+    findings = unit.findings + density_findings(density)
     ratio = None
     if spec.measured_mass is not None and spec.material is not None:
         ratio = density / spec.material.density
@@ -315,7 +322,9 @@ def measure_assembly(
         ))  # fmt: skip
         return AssemblyResult(manifest, tuple(items), total, {}, {}, (), (), overlap_samples, ())
 
-    properties = combine(item.properties for item in items)
+    with np.errstate(over="ignore", invalid="ignore"):
+        properties = combine(item.properties for item in items)
+    require_finite(properties, what="assembly totals", source=manifest.path)
     frame = principal_frame(properties.inertia_about_com)
     center = properties.center_of_mass
     placed_items = []
@@ -324,7 +333,11 @@ def measure_assembly(
         if omega is not None:
             base_velocity = np.zeros(3) if velocity is None else velocity
             item_velocity = base_velocity + np.cross(omega, item.properties.center_of_mass - center)
-        placed_items.append(replace(item, measurement=_with_views(item.measurement, point, omega, item_velocity)))
+        with np.errstate(over="ignore", invalid="ignore"):
+            viewed = _with_views(item.measurement, point, omega, item_velocity)
+        require_finite({"inertia_about_point": viewed.inertia_about_point, "spin": viewed.spin},
+                       what=f"{item.name}'s views", source=manifest.path)
+        placed_items.append(replace(item, measurement=viewed))
     items = placed_items
 
     trace = float(np.trace(properties.inertia_about_com))
@@ -390,12 +403,15 @@ def measure_assembly(
             text = f"{name}: implausible inertia: {check.message}"
             warnings.append(text)
             findings.append(Finding("implausible_inertia", WARNING, 1, text))
-    total = _with_views(
-        replace(total_stub, validation=_total_report(findings), properties=properties, principal=frame),
-        point,
-        omega,
-        velocity,
-    )
+    with np.errstate(over="ignore", invalid="ignore"):
+        total = _with_views(
+            replace(total_stub, validation=_total_report(findings), properties=properties, principal=frame),
+            point,
+            omega,
+            velocity,
+        )
+    require_finite({"inertia_about_point": total.inertia_about_point, "spin": total.spin,
+                    "named_points": named, "frames": frames}, what="assembly totals", source=manifest.path)
     return AssemblyResult(
         manifest,
         tuple(items),

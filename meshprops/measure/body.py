@@ -19,7 +19,9 @@ from ..io import Mesh, load_mesh
 from ..physics.mass import MassProperties, check_density
 from ..physics.moments import Moments
 from ..physics.principal import PrincipalFrame, principal_frame
+from ..physics.finite import require_finite
 from ..physics.spin import SpinState, spin
+from ..validation.density import density_findings
 from ..validation.solid import Solid, resolve_solid
 from ..validation.findings import ERROR, Finding, ValidationReport
 from .options import DEFAULT_DENSITY, MeasureOptions
@@ -124,6 +126,8 @@ def measure_mesh(
     report = solid.report
     if repaired is not None:  # locate every finding in the file as read
         report = replace(report, findings=repaired.findings + repaired.remap(report.findings))
+    if not density_assumed:
+        report = replace(report, findings=report.findings + density_findings(density))
     base = BodyMeasurement(
         source=mesh.source,
         name=name,
@@ -140,7 +144,9 @@ def measure_mesh(
     if not report.valid:
         return _invalid(base, on_invalid)
 
-    properties = MassProperties.from_moments(solid.moments, density)
+    with np.errstate(over="ignore", invalid="ignore"):  # an overflow is refused just below, by name
+        properties = MassProperties.from_moments(solid.moments, density)
+    require_finite(properties, source=mesh.source)  # before the eigen-solver sees an inf
     frame = principal_frame(properties.inertia_about_com)
     if not frame.satisfies_triangle_inequality:
         impossible = Finding(
@@ -153,15 +159,20 @@ def measure_mesh(
         return _invalid(replace(base, validation=report), on_invalid)
 
     point, omega = options.about, options.angular_velocity
-    return replace(
-        base,
-        properties=properties,
-        principal=frame,
-        point=point,
-        inertia_about_point=properties.inertia_about(point) if point is not None else None,
-        spin=spin(properties, omega, com_velocity=options.com_velocity, point=point) if omega is not None else None,
-        shell_sum=_shell_sum(solid.shell_sum, density),
+    with np.errstate(over="ignore", invalid="ignore"):  # an overflow is refused just below, by name
+        views = replace(
+            base,
+            properties=properties,
+            principal=frame,
+            point=point,
+            inertia_about_point=properties.inertia_about(point) if point is not None else None,
+            spin=spin(properties, omega, com_velocity=options.com_velocity, point=point) if omega is not None else None,
+            shell_sum=_shell_sum(solid.shell_sum, density),
+        )
+    require_finite(
+        {"principal": frame, "inertia_about_point": views.inertia_about_point, "spin": views.spin}, source=mesh.source
     )
+    return views
 
 
 def _shell_sum(moments: Moments, density: float) -> MassProperties | None:

@@ -16,7 +16,7 @@ from collections.abc import Mapping
 
 import numpy as np
 
-from ..errors import PhysicsError
+from ..errors import NonFiniteResultError
 
 
 def first_non_finite(value, name: str = "") -> str | None:
@@ -59,11 +59,12 @@ def first_non_finite(value, name: str = "") -> str | None:
 
 
 def require_finite(value, *, what: str = "mass properties", source: str | None = None) -> None:
-    """Raise :class:`PhysicsError` naming the first non-finite number of ``value``, if any."""
+    """Raise :class:`NonFiniteResultError` naming the first non-finite number of ``value``, if any."""
     found = first_non_finite(value)
     if found is not None:
-        raise PhysicsError(
+        raise NonFiniteResultError(
+            found,
             f"{what} overflow double precision ({found} is not finite): the part is too large, the density too "
-            "high or the spin too fast to compute; check the units of the input",
+            "high or the speed too great to compute; check the units of the input",
             source=source,
         )

@@ -33,14 +33,14 @@ def parallel_axis_term(mass: float, offset: np.ndarray) -> np.ndarray:
     return mass * (np.dot(offset, offset) * np.eye(3) - np.outer(offset, offset))
 
 
-def check_density(density: float, *, source: str | None = None) -> float:
-    """Return ``density`` as a float if it is finite and positive (kg/m³)."""
+def check_density(density: float, *, source: str | None = None, name: str = "density") -> float:
+    """Return ``density`` as a float if it is finite and positive (kg/m³); ``name`` labels the error."""
     try:
         value = float(density)
     except (TypeError, ValueError):
-        raise InputValueError("density", "a number in kg/m^3", density, source=source) from None
+        raise InputValueError(name, "a number in kg/m^3", density, source=source) from None
     if not np.isfinite(value) or value <= 0.0:
-        raise InputValueError("density", "a finite density > 0 kg/m^3", density, source=source)
+        raise InputValueError(name, "a finite density > 0 kg/m^3", density, source=source)
     return value
 
 

@@ -10,8 +10,9 @@ in g/cm^3 (7.85 for steel), lb/in^3 (0.284) or lb/ft^3 (490) where kg/m^3 is
 expected.
 
 This module is pure: it returns an assessment (data); the validation report
-turns it into an ``implausible_density`` warning. Densities that are zero,
-negative or not finite are refused outright (:func:`require_density`).
+turns it into an ``implausible_density`` warning (:func:`density_findings`).
+Densities that are zero, negative or not finite are refused outright
+(:func:`meshprops.physics.mass.check_density`).
 """
 
 from __future__ import annotations
@@ -19,9 +20,10 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..errors import InputValueError
 from ..materials import MATERIALS
+from ..physics.mass import check_density
 from ..units import KILOGRAMS_PER_POUND, LENGTH_UNITS
+from .findings import WARNING, Finding
 
 #: (lowest, highest) density of solid engineering materials, kg/m^3 (see the module docstring).
 PLAUSIBLE_DENSITY = (10.0, 23_000.0)
@@ -71,17 +73,6 @@ class DensityAssessment:
     message: str
 
 
-def require_density(value: float, name: str = "density", *, source: str | None = None) -> float:
-    """Return ``value`` as a float if it is a finite density above zero; raise :class:`InputValueError` otherwise."""
-    try:
-        density = float(value)
-    except (TypeError, ValueError):
-        raise InputValueError(name, "a density in kg/m^3 (a number above 0)", value, source=source) from None
-    if not math.isfinite(density) or density <= 0.0:
-        raise InputValueError(name, "a finite density in kg/m^3 above 0", value, source=source)
-    return density
-
-
 def _nearest_material(density: float) -> tuple[str, float]:
     best = min(MATERIALS.values(), key=lambda material: abs(math.log(density / material.density)))
     return best.name, abs(density / best.density - 1.0)
@@ -100,7 +91,7 @@ def _reading(candidate: SlipCandidate) -> str:
 
 def assess_density(density: float) -> DensityAssessment:
     """Say whether ``density`` (kg/m^3, finite, > 0) is plausible and, if not, which slips explain it."""
-    density = require_density(density)
+    density = check_density(density)
     low, high = PLAUSIBLE_DENSITY
     if low <= density <= high:
         return DensityAssessment(density, True, (), "")
@@ -122,3 +113,9 @@ def assess_density(density: float) -> DensityAssessment:
     else:
         message += "; check the value and its unit (kg/m^3 expected)"
     return DensityAssessment(density, False, tuple(candidates), message)
+
+
+def density_findings(density: float) -> tuple[Finding, ...]:
+    """``(implausible_density warning,)`` when ``density`` (kg/m^3) is outside the range, else ``()``."""
+    verdict = assess_density(density)
+    return () if verdict.plausible else (Finding("implausible_density", WARNING, 1, verdict.message),)

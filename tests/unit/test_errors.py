@@ -28,6 +28,9 @@ EXAMPLES = {
     "OutputFileError": lambda: errors.OutputFileError("out/report.json", "no such folder"),
     "PhysicsError": lambda: errors.PhysicsError("negative principal moment", source="part.stl"),
     "ModelFileError": lambda: errors.ModelFileError("arm.urdf", "mesh 'meshes/base.stl' not found", line=9),
+    "NonFiniteResultError": lambda: errors.NonFiniteResultError(
+        "mass", "mass properties overflow double precision (mass is not finite)", source="planet.stl"
+    ),
     "ManifestError": lambda: errors.ManifestError("rover.toml", "body[2].material", "unknown material 'alu'", line=12),
     "SimulatorExportError": lambda: errors.SimulatorExportError("chassis: inertia tensor is not positive definite"),
     "MissingExtraError": lambda: errors.MissingExtraError("PNG pictures (--png) need matplotlib", "report"),

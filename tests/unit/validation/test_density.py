@@ -8,7 +8,8 @@ import pytest
 
 from meshprops.errors import InputValueError, MeshpropsError
 from meshprops.materials import MATERIALS
-from meshprops.validation.density import PLAUSIBLE_DENSITY, SLIP_UNITS, assess_density, require_density
+from meshprops.physics.mass import check_density
+from meshprops.validation.density import PLAUSIBLE_DENSITY, SLIP_UNITS, assess_density, density_findings
 
 
 def test_every_table_material_is_plausible():
@@ -65,10 +66,18 @@ def test_far_above_the_range_has_no_slip_to_offer():
 @pytest.mark.parametrize("bad", [0.0, -7850.0, math.inf, -math.inf, math.nan, "steel", None])
 def test_non_positive_and_non_finite_densities_are_refused(bad):
     with pytest.raises(InputValueError) as caught:
-        require_density(bad, "--density")
+        check_density(bad, name="--density")
+    with pytest.raises(InputValueError):
+        assess_density(bad)
     assert isinstance(caught.value, MeshpropsError) and isinstance(caught.value, ValueError)
     assert str(caught.value).startswith("--density: expected")
 
 
 def test_the_range_is_the_documented_one():
     assert PLAUSIBLE_DENSITY == (10.0, 23_000.0)
+
+
+def test_the_finding_is_a_warning_only_outside_the_range():
+    assert density_findings(7850.0) == ()
+    (finding,) = density_findings(7.85)
+    assert finding.code == "implausible_density" and finding.severity == "warning" and "g/cm^3" in finding.message

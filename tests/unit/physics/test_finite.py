@@ -8,7 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 import pytest
 
-from meshprops.errors import MeshpropsError, PhysicsError
+from meshprops.errors import MeshpropsError, NonFiniteResultError
 from meshprops.physics.finite import first_non_finite, require_finite
 
 
@@ -37,10 +37,11 @@ def test_the_first_non_finite_number_is_named():
 
 
 def test_require_finite_raises_one_clear_error():
-    with pytest.raises(PhysicsError) as caught:
+    with pytest.raises(NonFiniteResultError) as caught:
         require_finite({"kinetic_energy": math.inf}, what="spin", source="rover.stl")
     error = caught.value
-    assert isinstance(error, MeshpropsError) and isinstance(error, ValueError)
+    assert isinstance(error, MeshpropsError) and isinstance(error, OverflowError)
+    assert error.quantity == "kinetic_energy" and error.exit_code == 2
     text = str(error)
     assert text.startswith("rover.stl: spin overflow double precision (kinetic_energy is not finite)")
     assert "\n" not in text
