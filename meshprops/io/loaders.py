@@ -9,7 +9,7 @@ import os
 import numpy as np
 
 from ..errors import MeshFileError
-from ..units import metres_per
+from ..units import canonical_length_unit, metres_per
 from .mesh import STL_HEADER_BYTES, STL_RECORD, Mesh, checked_mesh
 from .obj import read_obj
 from .ply import read_ply
@@ -43,6 +43,7 @@ def load_mesh(path: str | os.PathLike, length_unit: str = "mm") -> Mesh:
     UnitError
         Unknown ``length_unit``.
     """
+    length_unit = canonical_length_unit(length_unit)
     scale = metres_per(length_unit)
     source = os.fspath(path)
     with file_errors(source):
@@ -102,13 +103,21 @@ def _detect_format(source: str, head: bytes, size: int) -> str:
     # always has a NUL byte in its triangle count, so "no NUL and facets" means text.
     if starts_solid and (_looks_like_text(head) or (b"\0" not in head and b"facet" in head.lower())):
         return "stl-ascii"
-    if extension == ".obj" or (extension not in (".stl", ".ply") and _looks_like_obj(head)):
+    # By content whatever the name: an OBJ (or PLY, above) named .stl is read as what it is.
+    if extension == ".obj" or _looks_like_obj(head):
         return "obj"
-    if extension == ".stl":
+    if _looks_like_text(head):
+        first = head.strip().splitlines()[0][:40].decode("ascii", "replace") if head.strip() else ""
+        raise MeshFileError(
+            source, f"text that is not an STL, OBJ or PLY mesh (it begins {first!r}); expected a mesh file"
+        )
+    if extension == ".stl" or size >= STL_HEADER_BYTES:
         if size < STL_HEADER_BYTES:
             raise MeshFileError(source, f"binary STL: file is {size} bytes, shorter than the 84-byte header")
         count = int(np.frombuffer(head[80:84], "<u4")[0])
         expected = STL_HEADER_BYTES + 50 * count
+        if extension != ".stl":
+            raise MeshFileError(source, "unrecognised mesh format (binary data, not STL, OBJ or PLY)")
         problem = "truncated" if size < expected else "has trailing bytes"
         raise MeshFileError(
             source, f"binary STL {problem}: header says {count} triangles, expected {expected} bytes, found {size}"

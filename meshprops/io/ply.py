@@ -11,6 +11,9 @@ import numpy as np
 from ..errors import MeshFileError
 from .mesh import Mesh
 
+#: The face lists that hold vertex indices; every other list is skipped, whatever its type.
+INDEX_LISTS = ("vertex_indices", "vertex_index")
+
 _PLY_TYPES = {
     "char": "i1", "int8": "i1", "uchar": "u1", "uint8": "u1",
     "short": "i2", "int16": "i2", "ushort": "u2", "uint16": "u2",
@@ -87,7 +90,7 @@ def read_ply(source: str, data: bytes, unit: str, scale: float) -> Mesh:
         for prop in element.properties:
             if prop.count_dtype is not None and prop.count_dtype.startswith("f"):
                 raise MeshFileError(source, f"PLY list {prop.name!r} has a floating-point count type; counts are integers")
-            if element.name == "face" and prop.name in ("vertex_indices", "vertex_index"):
+            if element.name == "face" and prop.name in INDEX_LISTS:
                 if prop.count_dtype is None:
                     raise MeshFileError(source, f"PLY face property {prop.name!r} must be a list")
                 if prop.dtype.startswith("f"):
@@ -170,10 +173,12 @@ def _ply_ascii_values(source: str, elements: list[_PlyElement], body: bytes) -> 
                         items = numbers[position + 1 : position + 1 + length]
                         if items.size != length:
                             raise MeshFileError(source, f"PLY ends inside element {element.name!r} (truncated?)")
+                        position += 1 + length
+                        if prop.name not in INDEX_LISTS:
+                            continue  # other lists (texture coordinates, ...) may hold any type: skipped
                         if not np.all(np.isfinite(items)) or np.any(items != np.round(items)) or np.any(np.abs(items) > 2**53):
                             raise MeshFileError(source, f"PLY list {prop.name!r} holds a value that is not an integer index")
                         rows[prop.name].append(items.astype(np.int64))
-                        position += 1 + length
             for prop in element.properties:
                 columns[prop.name] = _as_uniform(rows[prop.name]) if prop.count_dtype else np.array(rows[prop.name])
         values[element.name] = columns
@@ -233,7 +238,8 @@ def _ply_binary_values(source: str, elements: list[_PlyElement], body: bytes, or
                     position += count_type.itemsize
                     if length < 0 or position + length * item.itemsize > len(body):
                         raise MeshFileError(source, f"binary PLY truncated inside element {element.name!r}")
-                    rows[prop.name].append(np.frombuffer(body, item, length, position).astype(np.int64))
+                    if prop.name in INDEX_LISTS:  # other lists may hold any type: skipped
+                        rows[prop.name].append(np.frombuffer(body, item, length, position).astype(np.int64))
                     position += length * item.itemsize
         values[element.name] = {
             p.name: (_as_uniform(rows[p.name]) if p.count_dtype else np.array(rows[p.name])) for p in props

@@ -51,7 +51,8 @@ from ..physics.rotations import (
     rotation_from_axis_angle,
     rotation_from_rpy,
 )
-from ..units import LENGTH_UNITS, metres_per
+from ..errors import UnitError
+from ..units import LENGTH_UNITS, canonical_length_unit, metres_per
 
 MANIFEST_VERSION = 1
 
@@ -198,9 +199,10 @@ class ManifestReader:
 
     def unit(self, value, key: tuple) -> str:
         value = self.string(value, key)
-        if value not in LENGTH_UNITS:
-            raise self.fail(key, f"unknown length unit {value!r}; expected one of {', '.join(LENGTH_UNITS)}")
-        return value
+        try:
+            return canonical_length_unit(value)
+        except UnitError:
+            raise self.fail(key, f"unknown length unit {value!r}; expected one of {', '.join(LENGTH_UNITS)}") from None
 
     def rotation(self, table: dict, key: tuple) -> np.ndarray:
         forms = []
@@ -335,7 +337,13 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
     reader.keys(data, TOP_KEYS, ())
     assembly = data.get("assembly", {})
     reader.keys(assembly, ASSEMBLY_KEYS, ("assembly",))
-    version = assembly.get("manifest_version", MANIFEST_VERSION)
+    if "manifest_version" not in assembly:
+        raise reader.fail(
+            ("assembly", "manifest_version"),
+            f"missing; add manifest_version = {MANIFEST_VERSION} to the [assembly] table "
+            "(the version of the manifest format this file is written in)",
+        )
+    version = assembly["manifest_version"]
     if isinstance(version, bool) or version != MANIFEST_VERSION:
         raise reader.fail(("assembly", "manifest_version"), f"expected {MANIFEST_VERSION}, got {version!r}")
     name = reader.name(assembly.get("name", "assembly"), ("assembly", "name"))
@@ -384,6 +392,8 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
         claim(body_name, key + ("name",))
         mesh_text = reader.string(entry["mesh"], key + ("mesh",))
         mesh_path = os.path.normpath(os.path.join(base, mesh_text))
+        if os.path.isdir(mesh_path):
+            raise reader.fail(key + ("mesh",), f"is a directory, not a mesh file: {mesh_path}")
         if not os.path.isfile(mesh_path):
             raise reader.fail(key + ("mesh",), f"mesh file not found: {mesh_path}")
         material = density = measured = None

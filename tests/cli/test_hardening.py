@@ -18,7 +18,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from meshprops import shapes, writers
+from meshprops.geometry import shapes
+from meshprops.io import writers
 
 SCRIPT = shutil.which("meshprops", path=str(Path(sys.executable).parent)) or shutil.which("meshprops")
 NON_FINITE = re.compile(r"\b(inf|nan|infinity)\b", re.IGNORECASE)

@@ -50,7 +50,7 @@ def test_check_accepts_a_manifest_and_checks_each_mesh_it_lists_once(tmp_path):
     vertices, faces = shapes.box((10.0, 20.0, 30.0))
     writers.write_obj(tmp_path / "open.obj", vertices, faces[1:])  # one face missing: a hole
     (tmp_path / "kit.toml").write_text(
-        '[assembly]\nname = "kit"\nlength_unit = "mm"\n\n'
+        '[assembly]\nname = "kit"\nlength_unit = "mm"\nmanifest_version = 1\n\n'
         '[[body]]\nname = "a"\nmesh = "good.obj"\ndensity = 1000\n\n'
         '[[body]]\nname = "b"\nmesh = "good.obj"\ndensity = 1000\ntranslation = [50, 0, 0]\n\n'
         '[[body]]\nname = "c"\nmesh = "open.obj"\ndensity = 1000\n'

@@ -17,7 +17,8 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from meshprops import shapes, writers
+from meshprops.geometry import shapes
+from meshprops.io import writers
 from meshprops.cli import main
 
 NON_FINITE = re.compile(r"\b(inf|nan|infinity)\b", re.IGNORECASE)

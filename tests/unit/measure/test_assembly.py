@@ -1,3 +1,4 @@
+import re
 """Assemblies: composite bodies against hand-computed closed forms, placements, calibration,
 point masses, named points and frames, breakdown, spin, invalid bodies, and the demo manifest.
 
@@ -37,10 +38,21 @@ ROOT = ROOT
 ROVER = ROOT / "sample_meshes" / "rover.toml"
 MM = 1e-3
 
+def versioned(text: str) -> str:
+    """The manifest ``text`` with ``manifest_version = 1`` (required) added, every other line where it was."""
+    if "manifest_version" in text:
+        return text
+    if "[assembly]" not in text:
+        return text + "\n[assembly]\nmanifest_version = 1\n"
+    head, tail = text.split("[assembly]\n", 1)
+    block = re.match(r"(?:[^\[\n][^\n]*\n|\n(?!\[))*", tail).end()
+    return head + "[assembly]\n" + tail[:block] + "manifest_version = 1\n" + tail[block:]
+
+
 
 def write_manifest(directory: Path, text: str, name: str = "assembly.toml") -> Path:
     path = directory / name
-    path.write_text(text, encoding="utf-8")
+    path.write_text(versioned(text), encoding="utf-8")
     return path
 
 
@@ -242,6 +254,7 @@ def test_rotation_forms_are_the_documented_matrices(tmp_path):
     roll, pitch, yaw = 10.0, -35.0, 120.0
     expected_rpy = _elementary("z", yaw) @ _elementary("y", pitch) @ _elementary("x", roll)  # URDF convention
     data = {
+        "assembly": {"manifest_version": 1},
         "body": [
             {"name": "a", "mesh": "box.stl", "density": 1.0, "rotation_rpy_deg": [roll, pitch, yaw]},
             {"name": "b", "mesh": "box.stl", "density": 1.0, "rotation_axis": [0, 0, 2], "rotation_angle_deg": 90},

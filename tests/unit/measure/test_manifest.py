@@ -1,3 +1,4 @@
+import re
 """Every manifest error: a ManifestError (also a ValueError) naming the manifest, the key and the
 line; through the CLI one line on stderr, exit code 2, nothing on stdout, no traceback."""
 
@@ -90,6 +91,17 @@ CASES = [
      "cannot load mesh"),
 ]
 
+def versioned(text: str) -> str:
+    """The manifest ``text`` with ``manifest_version = 1`` (required) added, every other line where it was."""
+    if "manifest_version" in text:
+        return text
+    if "[assembly]" not in text:
+        return text + "\n[assembly]\nmanifest_version = 1\n"
+    head, tail = text.split("[assembly]\n", 1)
+    block = re.match(r"(?:[^\[\n][^\n]*\n|\n(?!\[))*", tail).end()
+    return head + "[assembly]\n" + tail[:block] + "manifest_version = 1\n" + tail[block:]
+
+
 
 @pytest.fixture
 def folder(tmp_path):
@@ -98,7 +110,8 @@ def folder(tmp_path):
     return tmp_path
 
 
-@pytest.mark.parametrize("case, text, key, line, words", CASES, ids=[c[0] for c in CASES])
+@pytest.mark.parametrize("case, text, key, line, words", [(c[0], versioned(c[1]), *c[2:]) for c in CASES],
+                         ids=[c[0] for c in CASES])
 def test_manifest_error_names_file_key_and_line(folder, case, text, key, line, words):
     path = folder / f"{case}.toml"
     path.write_text(text, encoding="utf-8")
@@ -117,7 +130,7 @@ def test_manifest_error_names_file_key_and_line(folder, case, text, key, line, w
 
 @pytest.mark.parametrize("case", ["unknown_body_key", "missing_mesh_file", "toml_syntax", "malformed_mesh"])
 def test_cli_prints_one_line_and_exits_2(folder, case):
-    text = dict((c[0], c[1]) for c in CASES)[case]
+    text = versioned(dict((c[0], c[1]) for c in CASES)[case])
     path = folder / f"{case}.toml"
     path.write_text(text)
     out = CliRunner().invoke(app, ["measure", str(path), "--json"])
@@ -140,7 +153,7 @@ def test_unreadable_manifests(tmp_path):
 
 def test_cli_usage_errors_with_a_manifest(folder):
     path = folder / "ok.toml"
-    path.write_text(GOOD_BODY + "[points]\nmast = [0, 0, 5]\n")
+    path.write_text(versioned(GOOD_BODY + "[points]\nmast = [0, 0, 5]\n"))
     runner = CliRunner()
     for arguments, words in (
         (["--units", "cm"], "no --units with a manifest"),
@@ -164,6 +177,6 @@ def test_cli_usage_errors_with_a_manifest(folder):
 
 def test_about_point_errors_are_input_value_errors(folder):
     path = folder / "ok.toml"
-    path.write_text(GOOD_BODY)
+    path.write_text(versioned(GOOD_BODY))
     with pytest.raises(InputValueError):
         measure_manifest(path, about="1,2")

@@ -1,3 +1,4 @@
+import re
 """Overlap detection: R-tree broad phase, exact point-in-solid test, Monte-Carlo shared volume.
 
 Reference values are exact geometry worked by hand (intersections of boxes and prisms), and an
@@ -23,6 +24,17 @@ from meshprops.measure.overlap import (
 from meshprops.output.serialize import assembly_document
 
 MM = 1e-3
+
+def versioned(text: str) -> str:
+    """The manifest ``text`` with ``manifest_version = 1`` (required) added, every other line where it was."""
+    if "manifest_version" in text:
+        return text
+    if "[assembly]" not in text:
+        return text + "\n[assembly]\nmanifest_version = 1\n"
+    head, tail = text.split("[assembly]\n", 1)
+    block = re.match(r"(?:[^\[\n][^\n]*\n|\n(?!\[))*", tail).end()
+    return head + "[assembly]\n" + tail[:block] + "manifest_version = 1\n" + tail[block:]
+
 
 
 def tri(mesh):
@@ -141,7 +153,7 @@ translation = {second_translation}
 {second_rotation}
 """
     path = tmp_path / "cubes.toml"
-    path.write_text(text)
+    path.write_text(versioned(text))
     return path
 
 

@@ -185,6 +185,7 @@ def test_sign_of_the_off_diagonal_is_minus_the_product_of_inertia(tmp_path):
     m = rho * a * b * c
     product = m * (a * a - b * b) / 12.0 * math.sin(theta) * math.cos(theta)
     (tmp_path / "m.toml").write_text(
+        "[assembly]\nmanifest_version = 1\n"
         '[[body]]\nname = "box"\nmesh = "box.obj"\ndensity = 2700\n'
         "rotation_axis = [0, 0, 1]\nrotation_angle_deg = 30\n"
     )
@@ -260,6 +261,7 @@ def test_refuses_a_body_without_numbers_and_a_point_mass_without_inertia(tmp_pat
         inertial_blocks({"bodies": [{"name": "broken", "mass": None, "inertia_about_com": None}]}, "urdf")
     write_obj(tmp_path / "box.obj", *shapes.box((10.0, 10.0, 10.0)))
     (tmp_path / "m.toml").write_text(
+        "[assembly]\nmanifest_version = 1\n"
         '[[body]]\nname = "box"\nmesh = "box.obj"\ndensity = 1000\n'
         '[[point_mass]]\nname = "screw"\nmass = 0.002\nposition = [0, 0, 10]\n'
     )
@@ -282,6 +284,7 @@ def test_equivalent_box_of_a_box_is_the_box():
 def test_point_mass_with_placeholder_inertia_is_refused(tmp_path):
     write_obj(tmp_path / "box.obj", *shapes.box((10.0, 10.0, 10.0)))
     (tmp_path / "m.toml").write_text(
+        "[assembly]\nmanifest_version = 1\n"
         '[[body]]\nname = "box"\nmesh = "box.obj"\ndensity = 1000\n'
         '[[point_mass]]\nname = "camera"\nmass = 0.05\nposition = [0, 0, 20]\nbox_size = [30, 30, 20]\n'
         "inertia = [[1, 0, 0], [0, 1, 0], [0, 0, 1]]\n"  # placeholder 1 kg*m^2 for a 50 g camera
@@ -299,6 +302,7 @@ def test_inertia_typed_in_the_wrong_unit_gets_a_warning(tmp_path):
     of that: the equivalent box shrinks far below the envelope."""
     write_obj(tmp_path / "box.obj", *shapes.box((10.0, 10.0, 10.0)))
     (tmp_path / "m.toml").write_text(
+        "[assembly]\nmanifest_version = 1\n"
         '[[body]]\nname = "box"\nmesh = "box.obj"\ndensity = 1000\n'
         '[[point_mass]]\nname = "camera"\nmass = 0.05\nposition = [0, 0, 20]\nbox_size = [30, 30, 30]\n'
         "inertia = [[7.5e-15, 0, 0], [0, 7.5e-15, 0], [0, 0, 7.5e-15]]\n"
