@@ -22,10 +22,10 @@ from ..errors import MeshpropsError
 from ..io import load_mesh
 from ..io.hashing import file_sha256
 from ..io.loaders import load_mesh_content
-from ..measure.body import BodyMeasurement, measure_mesh
+from ..measure.body import BodyMeasurement, measure_mesh, unreadable_measurement
 from ..measure.manifest import load_manifest
 from ..measure.options import MeasureOptions
-from ..validation.solid import CheckResult, SolidOptions, check_mesh
+from ..validation.solid import CheckResult, SolidOptions, check_mesh, unreadable_check
 from .cache import CacheKey, ResultCache, settings_fingerprint
 
 #: File extensions taken from a folder (compared case-insensitively).
@@ -286,7 +286,42 @@ def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: s
 
 
 __all__ = [
-    "FileJob", "FileOutcome", "MESH_EXTENSIONS", "check_files", "check_inputs", "check_settings_key", "check_task",
-    "expand_inputs", "iter_files", "measure_files", "measure_settings_key", "raise_first_error", "run_cached_files",
-    "run_files", "with_content",
+    "FileJob", "FileOutcome", "MESH_EXTENSIONS", "check_every_file", "check_files", "check_inputs", "check_items",
+    "check_settings_key", "check_task", "expand_inputs", "iter_files", "measure_every_file", "measure_files",
+    "measure_settings_key", "raise_first_error", "run_cached_files", "run_files", "with_content",
 ]  # fmt: skip
+
+
+def check_every_file(paths, length_unit: str = "mm") -> list[CheckResult]:
+    """Check every file (folders expanded, manifests standing for their meshes), in order.
+
+    A file that cannot be read gets its own entry (:func:`~meshprops.validation.checks.unreadable_check`:
+    invalid, one ``unreadable`` finding giving the reason); the others are still checked.
+    """
+    return check_items(check_inputs(paths, length_unit))
+
+
+def check_items(items: Sequence[tuple[str, str]]) -> list[CheckResult]:
+    """Check every ``(mesh path, length unit)`` of :func:`check_inputs`; an unreadable one gets its own entry."""
+    outcomes = run_files(items, check_task, label=lambda item: item[0])
+    return [
+        outcome.result if outcome.ok else unreadable_check(outcome.path, unit, outcome.error)
+        for outcome, (_, unit) in zip(outcomes, items)
+    ]
+
+
+def measure_every_file(paths, options: MeasureOptions | None = None) -> list[BodyMeasurement]:
+    """Measure every mesh file (one body each), in order; an invalid mesh is reported, not raised.
+
+    A file that cannot be read gets its own body (:func:`~meshprops.measure.body.unreadable_measurement`:
+    ``valid`` false, no numbers, one ``unreadable`` finding); the others are still measured.
+    """
+    options = options or MeasureOptions()
+    unit = options.length_unit
+    outcomes = run_files([os.fspath(p) for p in paths], lambda path: load_mesh(path, unit))
+    return [
+        measure_mesh(outcome.result, options, on_invalid="report")
+        if outcome.ok
+        else unreadable_measurement(outcome.path, unit, outcome.error)
+        for outcome in outcomes
+    ]

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import functools
 import sys
+from typing import Annotated
 
 import typer
 
@@ -21,12 +22,28 @@ app = typer.Typer(
     no_args_is_help=True,
     pretty_exceptions_enable=False,
     rich_markup_mode=None,
+    context_settings={"help_option_names": ["-h", "--help"]},
 )
 
 
+def _print_version(value: bool) -> None:
+    if value:
+        from ..version import __version__
+
+        print(f"meshprops {__version__}")
+        raise typer.Exit(EXIT_OK)
+
+
 @app.callback()
-def _root() -> None:
+def _root(
+    version: Annotated[bool, typer.Option("--version", help="Print the version and exit.", callback=_print_version,
+                                          is_eager=True)] = False,
+) -> None:
     """Exact mass properties from closed triangle meshes. SI output; see README for conventions."""
+
+
+#: The metavar of the FILES argument of every command (typer would print ``{files}``).
+FILES_METAVAR = "FILES..."
 
 
 def say(message: str) -> None:

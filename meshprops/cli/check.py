@@ -15,19 +15,20 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, EXIT_USAGE, InputValueError
-from .app import announce_first_compile, app, one_line_errors, say, write_report
+from .app import FILES_METAVAR, Command, announce_first_compile, app, one_line_errors, say, write_report
 from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, run_records
+from .options import length_unit
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def check(
-    files: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files (STL, OBJ, PLY) or folders of them (recursive) to check, or assembly manifests (.toml): their meshes.", show_default=False)] = None,
-    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default: the configuration's, else mm).")] = None,
+    files: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files (STL, OBJ, PLY) or folders of them (recursive) to check, or assembly manifests (.toml): their meshes.", show_default=False, metavar=FILES_METAVAR)] = None,
+    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft, in any letter case or spelt out (default: the configuration's, else mm).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 for every file (default: the configuration's material or density).")] = None,
     all_files: Annotated[bool, typer.Option("--all", help="Check every mesh under the current directory (recursively) and every baseline entry: the CI mode.")] = False,
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document instead of a table.")] = False,
-    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
+    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout; never over an input.")] = None,
     html_report: Annotated[Optional[Path], typer.Option("--report", help="Also write one HTML page: a row per file with a picture and its verdict.")] = None,
     jobs: Jobs = None,
     scheduler: Scheduler = None,
@@ -45,10 +46,12 @@ def check(
     finding or a rule, baseline or budget violation; 2 usage or unreadable input.
     """
     from ..gate.runner import load_gate
-    from ..units import LENGTH_UNITS
+    from ..io.paths import refuse_output_over_inputs
 
-    if units is not None and units not in LENGTH_UNITS:
-        raise InputValueError("--units", f"one of {', '.join(LENGTH_UNITS)}", units)
+    refuse_output_over_inputs(output, files or [])  # before anything is read, even a manifest
+    refuse_output_over_inputs(html_report, files or [])
+    if units is not None:
+        units = length_unit(units)
     batch = BatchSettings(jobs, scheduler, ship_content, cache, json_lines)
     if json_lines and json_output:
         raise InputValueError("--json/--json-lines", "either --json or --json-lines, not both", "both")
@@ -79,14 +82,22 @@ def check(
 
 def _plain_check(given, units, batch, json_output, output, html_report, solid=None) -> None:
     """Every check on every file through the batch loop; no gate is in force. Exits."""
-    from ..batch.runner import FileJob, check_inputs, check_settings_key, raise_first_error
+    from ..batch.runner import FileJob, check_inputs, check_settings_key, check_task, expand_inputs
+    from ..io.paths import refuse_output_over_inputs
     from ..output.gate import plain_gate_fields
-    from ..output.records import check_record, first_error_line
+    from ..output.records import check_record, first_error_line, is_unreadable, records_of, unreadable_check_record
     from ..output.renderers import to_json
     from ..output.serialize import check_document_of
     from ..output.table import render_check_table
 
-    work = [FileJob(path, unit, check_options=solid) for path, unit in check_inputs(given, units)]
+    pairs = check_inputs(given, units)
+    inputs = expand_inputs(given) + [path for path, _ in pairs]
+    refuse_output_over_inputs(output, inputs)
+    refuse_output_over_inputs(html_report, inputs)
+    work = [FileJob(path, unit, check_options=solid) for path, unit in pairs]
+    if not work:  # an empty folder: say so rather than report nothing
+        raise InputValueError("FILES", "at least one mesh file (folders are searched for .stl, .obj, .ply)", given)
+    units_of = {job.path: job.length_unit for job in work}
     collected = [] if batch.json_lines and output is not None else None
     outcomes = run_records(work, check_record, check_settings_key, batch, description="check", collected=collected)
     if batch.json_lines:
@@ -94,17 +105,17 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
         if collected is not None:
             write_report("".join(collected), output)
     else:
-        records = raise_first_error(outcomes)
+        # Every file reported: an unreadable one is its own entry (issue 9).
+        records = records_of(outcomes, lambda outcome: unreadable_check_record(outcome, units_of[outcome.path]))
         doc = plain_gate_fields(check_document_of(records, input_length_unit=units))
         write_report(to_json(doc) if json_output else render_check_table(doc), output)
         if html_report is not None:  # the page draws each mesh: built here, from the files themselves
-            from ..batch.runner import check_files
-
-            _write_html_report(check_files(given, units, solid), html_report)
+            readable = [job for job, record in zip(work, records) if not is_unreadable(record)]  # nothing to draw
+            _write_html_report([check_task(job) for job in readable], html_report)
     for record in records:
         line = first_error_line(record)
         if line is not None:
-            say(f"{record['source']}: {line}")
+            say(f"error: {record['source']}: {line}")
     if any(not outcome.ok for outcome in outcomes):
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
     # warnings inform without blocking: a pre-commit hook refuses on any non-zero code
@@ -117,9 +128,13 @@ def _gate_check(given, config, baseline, units, density, all_files, batch, json_
     from ..output.gate import gate_check_document, render_gate_text
     from ..output.renderers import to_json
 
+    from ..io.paths import refuse_output_over_inputs
+
     paths, overrides = gate_inputs(given)
     if all_files:
         paths = list(dict.fromkeys(paths + [os.path.relpath(p) for p in iter_mesh_files(os.getcwd())]))
+    refuse_output_over_inputs(output, paths)
+    refuse_output_over_inputs(html_report, paths)
     report = run_gate(
         paths, config=config, baseline=baseline, length_unit=units, density=density, settings=overrides,
         missing_entries=all_files, map_function=backend_map(jobs=batch.jobs, scheduler=batch.scheduler),
@@ -131,7 +146,7 @@ def _gate_check(given, config, baseline, units, density, all_files, batch, json_
     for outcome in report.files:
         if outcome.errors:
             first = outcome.errors[0]
-            say(f"{outcome.source}: invalid mesh: {first.code}: {first.message}")
+            say(f"error: {outcome.source}: invalid mesh: {first.code}: {first.message}")
         for verdict in outcome.failed_verdicts:
             say(f"{outcome.source}: {verdict.rule}: {verdict.message}")
     if report.budget is not None:

@@ -9,21 +9,23 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
+from ..io.paths import refuse_output_over_inputs
 from ..measure.options import MeasureOptions
+from ..physics.mass import check_density
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
-from .app import announce_first_compile, app, one_line_errors, say, write_report
+from .app import FILES_METAVAR, Command, announce_first_compile, app, one_line_errors, say, write_report
 from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, emit_line, run_records
-from .options import angular_velocity, manifest_point, parse_vector
+from .options import angular_velocity, display_settings, length_unit, manifest_point, parse_vector
 from .solid_file import check_solid_target, write_integrated_solid
 
 SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def measure(
-    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY), one body each, or folders of them (recursive); or one assembly manifest (.toml).", show_default=False)],
-    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default mm; a manifest sets its own).")] = None,
+    files: Annotated[list[Path], typer.Argument(help="Mesh files (STL, OBJ, PLY), one body each, or folders of them (recursive); or one assembly manifest (.toml).", show_default=False, metavar=FILES_METAVAR)],
+    units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft, in any letter case or spelt out (default mm; a manifest sets its own).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3, applied to every file (default 1000, flagged as assumed).")] = None,
     about: Annotated[Optional[str], typer.Option("--about", help="Also report the inertia about point X,Y,Z (in --units; with a manifest in its length_unit, or a named point).")] = None,
     spin: Annotated[Optional[str], typer.Option("--spin", help="Angular velocity WX,WY,WZ in rad/s, in the mesh axes.")] = None,
@@ -35,7 +37,7 @@ def measure(
     inertial_form: Annotated[str, typer.Option("--inertial-form", help="Simulator blocks: full (six tensor entries) or principal (principal moments plus orientation).")] = "full",
     blocks_only: Annotated[bool, typer.Option("--blocks-only", help="With --format urdf|sdf|mjcf and a manifest: only the inertial blocks, not a complete model.")] = False,
     overlap_samples: Annotated[int, typer.Option("--overlap-samples", help="Manifest: Monte-Carlo points per pair of bodies for the overlap check (0 skips it).")] = 20000,
-    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout.")] = None,
+    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write the report to this file (atomically) instead of stdout; never over an input.")] = None,
     strict: Annotated[bool, typer.Option("--strict", help="Recover nothing (no crack closing, shell union or bounded crossings): refuse every imperfection, for a file certified exactly as exported.")] = False,
     weld_tolerance: Annotated[Optional[float], typer.Option("--weld-tolerance", help="Largest crack closed, in the mesh unit (default 1e-6 of the bounding-box diagonal; 0 turns it off).")] = None,
     volume_tolerance: Annotated[float, typer.Option("--volume-tolerance", help="Largest bound on the volume effect of faces crossing their own shell, as a fraction of the volume, for which numbers are given.")] = 1e-6,
@@ -47,14 +49,22 @@ def measure(
     ship_content: ShipContent = False,
     cache: CachePath = None,
     json_lines: JsonLines = False,
+    show_units: Annotated[str, typer.Option("--show-units", help="Units of the table: SI, mm-g, mm-kg or in-lb (JSON always SI).")] = "SI",
+    digits: Annotated[int, typer.Option("--digits", help="Significant digits of the table (1 to 17).")] = 6,
 ) -> None:
     """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
-    from ..batch.runner import FileJob, expand_inputs, measure_settings_key, raise_first_error
-    from ..output.records import MeasureRecord, first_error_line, total_record
+    from ..batch.runner import FileJob, expand_inputs, measure_settings_key
+    from ..output.records import MeasureRecord, first_error_line, records_of, total_record, unreadable_measure_record
     from ..output.renderers import choose_format, format_document
     from ..output.serialize import document
 
+    is_manifest = any(path.suffix.lower() == ".toml" for path in files)
+    if not is_manifest:  # a manifest's meshes are known once it is parsed (below)
+        refuse_output_over_inputs(output, [str(path) for path in files] + expand_inputs([str(path) for path in files]))
     chosen = choose_format(json_output, output_format)
+    display = display_settings(show_units, digits)
+    if density is not None:
+        density = check_density(density, name="--density")
     if blocks_only and chosen not in SIMULATOR_FORMATS:
         raise InputValueError("--blocks-only", "to be used with --format urdf, sdf or mjcf", chosen)
     omega = angular_velocity(spin, rpm, axis)
@@ -64,7 +74,7 @@ def measure(
     batch = BatchSettings(jobs, scheduler, ship_content, cache, json_lines)
     if json_lines and (json_output or output_format not in (None, "json")):
         raise InputValueError("--json-lines", "no --json or --format with --json-lines (it writes JSON records)", output_format or "--json")
-    if any(path.suffix.lower() == ".toml" for path in files):
+    if is_manifest:
         if total:
             raise InputValueError("--total", "mesh files or folders (an assembly manifest reports its own total)", "a manifest")
         if not batch.only_local_defaults:
@@ -79,8 +89,8 @@ def measure(
             angular_velocity=omega, com_velocity=com_velocity, overlap_samples=overlap_samples, strict=strict,
             weld_tolerance=weld_tolerance, volume_tolerance=volume_tolerance,
         )  # fmt: skip
-        _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only)
-    units = units or DEFAULT_LENGTH_UNIT
+        _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only, display)
+    units = length_unit(units) if units is not None else DEFAULT_LENGTH_UNIT
     point = parse_vector(about, "--about")
     options = MeasureOptions(
         length_unit=units,
@@ -94,13 +104,17 @@ def measure(
         volume_tolerance=volume_tolerance,
     )
     if write_solid is not None:
+        refuse_output_over_inputs(write_solid, files)
         check_solid_target(write_solid, files)
     announce_first_compile()
     work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
     settings_key = measure_settings_key(options)
     collected = [] if json_lines and output is not None else None
     outcomes = run_records(work, MeasureRecord(options), lambda job: settings_key, batch, description="measure", collected=collected)
-    records = [outcome.result for outcome in outcomes if outcome.ok] if json_lines else raise_first_error(outcomes)
+    if json_lines:
+        records = [outcome.result for outcome in outcomes if outcome.ok]
+    else:  # every file reported: an unreadable one is its own body (issue 9)
+        records = records_of(outcomes, lambda outcome: unreadable_measure_record(outcome, units))
     summed = total_record(records, options, source=", ".join(str(path) for path in files)) if total and records else None
     if json_lines:
         if summed is not None and all(outcome.ok for outcome in outcomes):
@@ -109,7 +123,7 @@ def measure(
             write_report("".join(collected), output)
     else:
         doc = document(records, input_length_unit=units, total=summed)
-        text, notes = format_document(doc, chosen, inertial_form=inertial_form)
+        text, notes = format_document(doc, chosen, inertial_form=inertial_form, display=display)
         write_report(text, output)
         for note in notes:
             say(f"warning: {note}")
@@ -121,13 +135,13 @@ def measure(
 
         write_integrated_solid(write_solid, measure_file(str(files[0]), options, on_invalid="report"))
     for record in invalid:
-        say(f"{record['source']}: {first_error_line(record)}")
+        say(f"error: {record['source']}: {first_error_line(record)}")
     if any(not outcome.ok for outcome in outcomes):
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
     raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
 
 
-def _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only) -> None:
+def _measure_manifest(files, units, density, about, options, chosen, inertial_form, output, blocks_only, display) -> None:
     """``measure MANIFEST.toml``: totals of an assembly; exits (1 when a body's mesh is invalid)."""
     from ..measure.assembly import measure_assembly, resolve_point
     from ..measure.manifest import load_manifest
@@ -136,25 +150,27 @@ def _measure_manifest(files, units, density, about, options, chosen, inertial_fo
 
     if len(files) != 1:
         raise InputValueError("FILES", "one assembly manifest alone (its bodies are listed inside it)", [str(f) for f in files])
+    refuse_output_over_inputs(output, files)  # before the manifest is even read
     if units is not None:
         raise InputValueError("--units", "no --units with a manifest (set length_unit in it)", units)
     if density is not None:
         raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
     manifest = load_manifest(files[0])
+    refuse_output_over_inputs(output, [body.mesh_path for body in manifest.bodies])
     announce_first_compile()
     result = measure_assembly(manifest, options, about=resolve_point(manifest, manifest_point(manifest, about)))
     doc = assembly_document(result)
     if chosen in SIMULATOR_FORMATS and not blocks_only:
         notes = _write_complete_model(doc, chosen, inertial_form, output)
     else:
-        text, notes = format_document(doc, chosen, inertial_form=inertial_form)
+        text, notes = format_document(doc, chosen, inertial_form=inertial_form, display=display)
         write_report(text, output)
     for note in tuple(result.warnings) + tuple(notes):
         say(f"warning: {note}")
     for item in result.items:
         if not item.valid:
             first = item.measurement.validation.errors[0]
-            say(f"{item.measurement.source}: invalid mesh: {first.code}: {first.message}")
+            say(f"error: {item.measurement.source}: invalid mesh: {first.code}: {first.message}")
     raise typer.Exit(EXIT_OK if result.valid else EXIT_INVALID)
 
 

@@ -9,7 +9,34 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import InputValueError
-from ..units import rpm_to_rad_per_s
+from ..units import canonical_length_unit, display_system, rpm_to_rad_per_s
+
+
+def length_unit(text: str, name: str = "--units") -> str:
+    """``--units`` text (any letter case, usual spellings) -> the canonical unit; empty or unknown refused."""
+    from ..errors import UnitError
+
+    try:
+        return canonical_length_unit(text)
+    except UnitError as error:
+        raise UnitError(error.unit, error.known, source=name) from None
+
+
+def display_settings(show_units: str, digits: int):
+    """``--show-units`` and ``--digits`` -> the table's :class:`~meshprops.output.body_table.TableDisplay`."""
+    from ..errors import UnitError
+    from ..output.body_table import TableDisplay
+    from ..output.numbers import check_digits
+
+    try:
+        system = display_system(show_units)
+    except UnitError as error:
+        raise UnitError(error.unit, error.known, source="--show-units") from None
+    try:
+        digits = check_digits(digits)
+    except ValueError:
+        raise InputValueError("--digits", "a whole number of significant digits from 1 to 17", digits) from None
+    return TableDisplay(system, digits)
 
 
 def parse_vector(text: str | None, name: str, *, source: str | None = None) -> np.ndarray | None:
@@ -39,12 +66,18 @@ def angular_velocity(spin_text: str | None, rpm: float | None, axis_text: str | 
     if axis_text is None:
         raise InputValueError("--rpm", "an --axis AX,AY,AZ to spin about", "no --axis")
     axis = parse_vector(axis_text, "--axis")
-    length = float((axis @ axis) ** 0.5)
-    if length == 0.0:
+    largest = float(np.max(np.abs(axis)))
+    if largest == 0.0:
         raise InputValueError("--axis", "a non-zero direction", axis_text)
+    axis = axis / largest  # scaled first, so that neither 1e200 nor 1e-320 over- or underflows the length
+    length = float((axis @ axis) ** 0.5)
     if not (rpm == rpm and abs(rpm) != float("inf")):
         raise InputValueError("--rpm", "a finite speed in rpm", rpm)
-    return axis / length * rpm_to_rad_per_s(rpm)
+    with np.errstate(over="ignore"):
+        rate = rpm_to_rad_per_s(rpm)
+    if not np.isfinite(rate):
+        raise InputValueError("--rpm", "a speed whose value in rad/s is finite", rpm)
+    return axis / length * rate
 
 
 def manifest_point(manifest, text: str | None):

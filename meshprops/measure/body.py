@@ -23,7 +23,7 @@ from ..physics.finite import require_finite
 from ..physics.spin import SpinState, spin
 from ..validation.density import density_findings
 from ..validation.solid import Solid, resolve_solid
-from ..validation.findings import ERROR, Finding, ValidationReport
+from ..validation.findings import ERROR, UNREADABLE, Finding, ValidationReport, unreadable_report
 from .options import DEFAULT_DENSITY, MeasureOptions
 
 
@@ -75,6 +75,19 @@ class BodyMeasurement:
     @property
     def findings(self) -> tuple[Finding, ...]:
         return self.validation.findings if self.validation is not None else ()
+
+    @property
+    def unreadable(self) -> bool:
+        """True for the stand-in of a file that could not be read (:func:`unreadable_measurement`)."""
+        return any(f.code == UNREADABLE for f in self.findings)
+
+
+def unreadable_measurement(path: str, length_unit: str, error) -> BodyMeasurement:
+    """The entry of a file that could not be read: ``valid`` false, no numbers, one ``unreadable`` finding."""
+    return BodyMeasurement(
+        source=path, name=None, file_format=None, length_unit=length_unit, face_count=None,
+        validation=unreadable_report(error), density=None, density_assumed=False, properties=None, principal=None,
+    )  # fmt: skip
 
 
 def measure_mesh(

@@ -15,11 +15,20 @@ JSON document is never touched: it stays SI with exact floats.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from ..units import DISPLAY_SYSTEMS, DisplaySystem
 from .numbers import DEFAULT_DIGITS, clean, format_number, quantity_scale
+
+@dataclass(frozen=True, slots=True, eq=False)
+class TableDisplay:
+    """How the table shows numbers: the display unit system and the significant digits."""
+
+    system: DisplaySystem = field(default_factory=lambda: DISPLAY_SYSTEMS["SI"])
+    digits: int = DEFAULT_DIGITS
+
 
 #: The order of the products of inertia everywhere (table, JSON keys, CSV): xy, xz, yz.
 PRODUCT_ORDER = ("xy", "xz", "yz")

@@ -25,8 +25,8 @@ CSV_COLUMNS = (
     ("Iyy about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][1][1]),
     ("Izz about assembly com [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][2][2]),
     ("Ixy about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][0][1]),
+    ("Ixz about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][0][2]),
     ("Iyz about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][1][2]),
-    ("Izx about assembly com (tensor entry = -product of inertia) [kg*m^2]", lambda e, b: e["inertia_contribution_about_com"][2][0]),
     ("inertia trace share [1]", lambda e, b: e["inertia_trace_share"]),
 )
 

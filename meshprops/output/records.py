@@ -12,16 +12,19 @@ reference to pool and cluster workers.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 
-from ..batch.runner import FileJob, check_task
-from ..measure.body import measure_mesh
+from ..batch.runner import FileJob, FileOutcome, check_task
+from ..errors import MeshFileError
+from ..measure.body import measure_mesh, unreadable_measurement
 from ..measure.options import MeasureOptions
 from ..measure.total import measure_total
 from ..physics.mass import MassProperties
+from ..validation.solid import unreadable_check
+from ..validation.findings import UNREADABLE
 from .serialize import body_to_dict, check_to_dict, summed_mesh
 
 
@@ -40,9 +43,40 @@ class MeasureRecord:
         return body_to_dict(measure_mesh(job.load(), self.options, on_invalid="report"))
 
 
+def records_of(outcomes, unreadable: Callable[[FileOutcome], dict]) -> list[dict]:
+    """Every outcome's record, in order: a file that could not be read (:class:`MeshFileError`)
+    gets ``unreadable(outcome)``, its own record with one ``unreadable`` finding; any other error
+    (an overflow, say) is raised, the first in input order."""
+    records = []
+    for outcome in outcomes:
+        if outcome.ok:
+            records.append(outcome.result)
+        elif isinstance(outcome.error, MeshFileError):
+            records.append(unreadable(outcome))
+        else:
+            raise outcome.error
+    return records
+
+
+def unreadable_check_record(outcome: FileOutcome, length_unit: str) -> dict:
+    """The ``check`` record of a file that could not be read."""
+    return check_to_dict(unreadable_check(outcome.path, length_unit, outcome.error))
+
+
+def unreadable_measure_record(outcome: FileOutcome, length_unit: str) -> dict:
+    """The ``measure`` record of a file that could not be read."""
+    return body_to_dict(unreadable_measurement(outcome.path, length_unit, outcome.error))
+
+
+def is_unreadable(record: dict) -> bool:
+    return any(finding["code"] == UNREADABLE for finding in record.get("findings", ()))
+
+
 def first_error_line(record: dict) -> str | None:
     """``"invalid mesh: CODE: message"`` for a record's first error finding, or ``None``."""
     for finding in record.get("findings", ()):
+        if finding["code"] == UNREADABLE:
+            return finding["message"]
         if finding["severity"] == "error":
             return f"invalid mesh: {finding['code']}: {finding['message']}"
     return None
@@ -66,7 +100,7 @@ def total_record(records: Sequence[dict], options: MeasureOptions, *, source: st
     The same keys as a body; ``name`` and ``kind`` are ``"total"``, ``mesh`` sums the bodies'
     meshes, ``parts`` counts them. Without numbers when any body has none.
     """
-    faces = sum(int(record["mesh"]["faces"]) for record in records if record.get("mesh"))
+    faces = sum(int(record["mesh"]["faces"]) for record in records if record.get("mesh") and record["mesh"]["faces"] is not None)
     total = measure_total([mass_properties_of(record) for record in records], options, source=source, face_count=faces)
     data = body_to_dict(total)
     data["mesh"] = summed_mesh(list(records), options.length_unit, file_format="total")

@@ -14,6 +14,7 @@ from functools import partial
 from ..errors import InputValueError
 from .csv_table import breakdown_csv
 from .simulators import inertial_blocks
+from .body_table import TableDisplay
 from .table import render_assembly_table, render_table
 
 
@@ -26,8 +27,8 @@ def _json(doc: dict, inertial_form: str) -> tuple[str, tuple[str, ...]]:
     return to_json(doc), ()
 
 
-def _table(doc: dict, inertial_form: str) -> tuple[str, tuple[str, ...]]:
-    return (render_assembly_table(doc) if "assembly" in doc else render_table(doc)), ()
+def _table(doc: dict, inertial_form: str, *, display: TableDisplay | None = None) -> tuple[str, tuple[str, ...]]:
+    return (render_assembly_table(doc, display=display) if "assembly" in doc else render_table(doc, display=display)), ()
 
 
 def _csv(doc: dict, inertial_form: str) -> tuple[str, tuple[str, ...]]:
@@ -62,10 +63,15 @@ def choose_format(json_flag: bool, output_format: str | None) -> str:
     return "json" if json_flag else (output_format or "table")
 
 
-def format_document(doc: dict, output_format: str, *, inertial_form: str = "full") -> tuple[str, tuple[str, ...]]:
+def format_document(
+    doc: dict, output_format: str, *, inertial_form: str = "full", display: TableDisplay | None = None
+) -> tuple[str, tuple[str, ...]]:
     """Render a measurement or assembly document as text; returns ``(text, warnings)``.
 
     ``urdf``, ``sdf`` and ``mjcf`` refuse (``SimulatorExportError``) when any
     block would be unsound; ``csv`` needs an assembly document (its breakdown).
+    ``display`` (units and significant digits) applies to the table only: the JSON stays SI.
     """
+    if output_format == "table":
+        return _table(doc, inertial_form, display=display)
     return RENDERERS[output_format](doc, inertial_form)

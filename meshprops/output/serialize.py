@@ -21,14 +21,14 @@ from ..version import __version__
 SCHEMA_NAME = "meshprops.measure"
 
 
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2  # 2: products_of_inertia keys xy, xz, yz (were xy, yz, zx); unreadable bodies
 
 
 CONVENTIONS = {
     "frame": "all vectors and tensors are in the axes of the input mesh; lengths converted to metres at load",
     "inertia_tensor": "I_ij = integral of (r^2 delta_ij - x_i x_j) dm; off-diagonal entries are the NEGATIVES "
     "of the products of inertia",
-    "products_of_inertia": "P_ij = integral of x_i x_j dm about the centre of mass (P_xy, P_yz, P_zx); P_ij = -I_ij",
+    "products_of_inertia": "P_ij = integral of x_i x_j dm about the centre of mass (P_xy, P_xz, P_yz); P_ij = -I_ij",
     "principal_moments": "ascending I1 <= I2 <= I3, about the centre of mass",
     "principal_axes": "rows e1, e2, e3 of a proper rotation R (det +1) with R I Rᵀ = diag(I1, I2, I3); e1 and e2 "
     "have their largest-magnitude component positive, e3 = e1 x e2; axes flagged not unique where moments coincide",
@@ -98,7 +98,7 @@ def body_to_dict(body: BodyMeasurement) -> dict:
             "mass": properties.mass if properties else None,
             "center_of_mass": vector_to_list(properties.center_of_mass) if properties else None,
             "inertia_about_com": matrix_to_list(properties.inertia_about_com) if properties else None,
-            "products_of_inertia": dict(zip(("xy", "yz", "zx"), vector_to_list(properties.products_of_inertia)))
+            "products_of_inertia": dict(zip(("xy", "xz", "yz"), vector_to_list(properties.products_of_inertia)))
             if properties
             else None,
             "radii_of_gyration": vector_to_list(properties.radii_of_gyration) if properties else None,

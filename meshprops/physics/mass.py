@@ -95,9 +95,10 @@ class MassProperties:
 
     @property
     def products_of_inertia(self) -> np.ndarray:
-        """``P_ij = ∫ x_i x_j dm`` about the centre of mass (kg·m²), as ``[P_xy, P_yz, P_zx]``."""
+        """``P_ij = ∫ x_i x_j dm`` about the centre of mass (kg·m²), as ``[P_xy, P_xz, P_yz]``
+        (the order used everywhere: JSON keys, tables, CSV, simulator blocks)."""
         tensor = self.inertia_about_com
-        return -np.array([tensor[0, 1], tensor[1, 2], tensor[2, 0]])
+        return -np.array([tensor[0, 1], tensor[0, 2], tensor[1, 2]])
 
     @property
     def radii_of_gyration(self) -> np.ndarray:

@@ -74,6 +74,20 @@ class ValidationReport:
         return tuple(f for f in self.findings if f.severity == WARNING)
 
 
+#: The code of the one finding an unreadable file gets (missing, empty, truncated, malformed, a directory).
+UNREADABLE = "unreadable"
+
+
+def unreadable_report(error) -> ValidationReport:
+    """The report of a file that could not be read: one ``unreadable`` error finding giving the reason.
+
+    ``error`` is the :class:`~meshprops.errors.MeshpropsError` that stopped the reading; the
+    mesh statistics are ``None`` (nothing was read).
+    """
+    reason = getattr(error, "problem", None) or str(error)
+    return ValidationReport((Finding(UNREADABLE, ERROR, 1, f"cannot be read: {reason}"),), None, None, None, {})
+
+
 def where(face_indices, mesh: Mesh, *, limit: int = WHERE_LIMIT) -> tuple[dict, ...]:
     """A few ``{"face": index, "point": centroid in m}`` locations (sorted face indices)."""
     chosen = np.unique(np.asarray(face_indices, dtype=np.int64))[:limit]

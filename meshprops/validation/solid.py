@@ -45,7 +45,7 @@ from .checks import (
     unit_findings,
     validate,
 )
-from .findings import ERROR, WARNING, WHERE_LIMIT, Finding, ValidationReport, where
+from .findings import ERROR, UNREADABLE, WARNING, WHERE_LIMIT, Finding, ValidationReport, unreadable_report, where
 
 #: Default bound on the volume effect of self-crossings, relative to the volume.
 VOLUME_TOLERANCE_RELATIVE = 1e-6
@@ -391,10 +391,20 @@ class CheckResult:
     """
 
     source: str
-    file_format: str
+    file_format: str | None
     length_unit: str
-    face_count: int
+    face_count: int | None
     report: ValidationReport
+
+    @property
+    def unreadable(self) -> bool:
+        """True for the entry of a file that could not be read (:func:`unreadable_check`)."""
+        return any(f.code == UNREADABLE for f in self.report.findings)
+
+
+def unreadable_check(path: str, length_unit: str, error) -> CheckResult:
+    """The entry of a file that could not be read: invalid, one ``unreadable`` finding giving the reason."""
+    return CheckResult(path, None, length_unit, None, unreadable_report(error))
 
 
 def check_mesh(mesh: Mesh, options: SolidOptions | None = None) -> CheckResult:

@@ -69,7 +69,7 @@ def test_json_document_has_the_contract_keys_and_the_library_numbers(bracket_stl
     result = invoke(bracket_stl, "--json", "--units", "mm", "--density", "2700", "--about", "10,0,-5", "--spin", "0,0,100")
     assert result.exit_code == 0, result.stderr
     document = json.loads(result.stdout)
-    assert document["schema_version"] == 1
+    assert document["schema_version"] == 2
     assert document["units"]["length"] == "m"
     assert document["units"]["mass"] == "kg"
     assert document["units"]["inertia"] == "kg*m^2"
@@ -167,7 +167,7 @@ def test_table_output_states_units_cautions_and_an_assumed_density(bracket_stl):
     result = invoke(bracket_stl)
     assert result.exit_code == 0
     assert "mass" in result.stdout and "kg" in result.stdout
-    assert "principal moments" in result.stdout
+    assert "principal frame" in result.stdout and "about the centre of mass" in result.stdout
     assert "ASSUMED" in result.stdout
     assert "CAUTION" in result.stdout
     assert "assumed 1000 kg/m^3" in result.stderr
@@ -246,10 +246,22 @@ def test_one_invalid_body_fails_the_run_but_the_valid_one_is_reported(bracket_st
 # ---------------------------------------------------------------------------- bad input: exit 2, one line
 
 
+def assert_reported_unreadable(out: str, *needles: str) -> None:
+    """The document still lists the file: one body, invalid, one ``unreadable`` finding (issue 9)."""
+    (body,) = json.loads(out)["bodies"] if out.lstrip().startswith("{") else [None]
+    if body is None:  # the table
+        assert "[INVALID]" in out and "unreadable" in out and "no numbers" in out
+        return
+    assert body["valid"] is False and body["mass"] is None
+    assert [f["code"] for f in body["findings"]] == ["unreadable"]
+    for needle in needles:
+        assert needle in body["findings"][0]["message"]
+
+
 def test_missing_file(capsys, tmp_path):
     code, out, err = run_main(capsys, tmp_path / "missing.stl", "--json")
     assert code == 2
-    assert out == ""
+    assert_reported_unreadable(out, "no such file")
     assert_one_clean_error_line(err, "missing.stl", "no such file")
 
 
@@ -257,14 +269,16 @@ def test_empty_file(capsys, tmp_path):
     path = tmp_path / "empty.stl"
     path.write_bytes(b"")
     code, out, err = run_main(capsys, path, "--density", "1000")
-    assert code == 2 and out == ""
+    assert code == 2
+    assert_reported_unreadable(out)
     assert_one_clean_error_line(err, "empty.stl", "empty")
 
 
 def test_truncated_binary_stl(capsys, bracket_stl):
     bracket_stl.write_bytes(bracket_stl.read_bytes()[:-20])
-    code, out, err = run_main(capsys, bracket_stl, "--density", "1000")
-    assert code == 2 and out == ""
+    code, out, err = run_main(capsys, bracket_stl, "--density", "1000", "--json")
+    assert code == 2
+    assert_reported_unreadable(out, "truncated")
     assert_one_clean_error_line(err, str(bracket_stl), "truncated")
 
 
@@ -272,7 +286,8 @@ def test_nan_coordinate(capsys, tmp_path):
     path = tmp_path / "nan.obj"
     path.write_text("v 0 0 0\nv 1 0 0\nv 0 nan 0\nv 0 0 1\nf 1 3 2\nf 1 2 4\nf 1 4 3\nf 2 3 4\n")
     code, out, err = run_main(capsys, path, "--density", "1000")
-    assert code == 2 and out == ""
+    assert code == 2
+    assert_reported_unreadable(out)
     assert_one_clean_error_line(err, "nan.obj", "NaN or infinite")
 
 
@@ -320,12 +335,13 @@ def test_output_file_holds_the_same_document(tmp_path, bracket_stl):
     assert written == printed
 
 
-def test_output_is_not_touched_when_a_later_file_fails(capsys, tmp_path, bracket_stl):
+def test_output_holds_every_file_when_a_later_file_cannot_be_read(capsys, tmp_path, bracket_stl):
     target = tmp_path / "report.json"
     target.write_text("previous report\n")
-    code, _, err = run_main(capsys, bracket_stl, tmp_path / "missing.stl", "--json", "--density", "1", "-o", target)
+    code, _, err = run_main(capsys, bracket_stl, tmp_path / "missing.stl", "--json", "--density", "1000", "-o", target)
     assert code == 2
-    assert target.read_text() == "previous report\n"
+    first, second = json.loads(target.read_text())["bodies"]  # the whole document (issue 9)
+    assert first["valid"] is True and second["valid"] is False and second["findings"][0]["code"] == "unreadable"
     assert sorted(p.name for p in tmp_path.iterdir()) == ["gimbal_bracket.stl", "report.json"]  # no temp files
     assert_one_clean_error_line(err, "missing.stl")
 
@@ -359,5 +375,5 @@ def test_python_dash_m_measures_and_fails_cleanly(tmp_path, bracket_stl):
     assert json.loads(done.stdout)["bodies"][0]["valid"] is True
     failed = _python_m("measure", tmp_path / "absent.ply", "--json", cwd=tmp_path)
     assert failed.returncode == 2
-    assert failed.stdout == ""
+    assert_reported_unreadable(failed.stdout, "no such file")
     assert_one_clean_error_line(failed.stderr, "absent.ply")

@@ -219,7 +219,9 @@ def test_the_command_line_refuses_broken_files_with_one_line(name, command, tmp_
     assert result.exit_code == 2, result.output
     lines = [line for line in result.stderr.splitlines() if line.strip()]
     assert len(lines) == 1 and lines[0].startswith("meshprops: error: ") and str(path) in lines[0]
-    assert "Traceback" not in result.output and result.stdout == ""
+    # The report still lists the file, as unreadable (issue 9: every file reported).
+    assert "Traceback" not in result.output and str(path) in result.stdout and "unreadable" not in lines[0]
+    assert "could not be read" in result.stdout or "unreadable" in result.stdout
 
 
 @pytest.mark.parametrize("name", ["truncated.stl", "noise.mesh"])
@@ -228,5 +230,5 @@ def test_the_installed_entry_point_refuses_broken_files_with_one_line(name, tmp_
     path.write_bytes(BROKEN[name])
     done = subprocess.run([sys.executable, "-m", "meshprops", "check", str(path)], capture_output=True, text=True, timeout=60)
     assert done.returncode == 2
-    assert done.stdout == "" and "Traceback" not in done.stderr
+    assert str(path) in done.stdout and "could not be read" in done.stdout and "Traceback" not in done.stderr
     assert len(done.stderr.strip().splitlines()) == 1 and str(path) in done.stderr

@@ -116,6 +116,13 @@ def test_products_of_inertia_are_minus_the_off_diagonals():
     assert properties.products_of_inertia[2] == pytest.approx(0.0, abs=1e-13)
 
 
+def test_products_of_inertia_come_in_the_order_xy_xz_yz():
+    # Hand calculation as above with the cubes at (1, 0, 1) and (-1, 0, -1): P_xz = 4, the others 0.
+    properties = _measure(*shapes.merge(shapes.box((1, 1, 1), (1, 0, 1)), shapes.box((1, 1, 1), (-1, 0, -1))), 2.0)
+    np.testing.assert_allclose(properties.products_of_inertia, [0.0, 4.0, 0.0], atol=1e-13)
+    assert properties.inertia_about_com[0, 2] == pytest.approx(-4.0, rel=1e-13)
+
+
 def test_radii_of_gyration():
     properties = _measure(*shapes.box((0.2, 0.3, 0.5)))
     # k = sqrt(I/m): for a box k_x = sqrt((b² + c²)/12).
