@@ -210,6 +210,7 @@ def check_document_of(files: Sequence[dict], *, input_length_unit: str) -> dict:
             "valid": sum(1 for f in files if f["valid"]),
             "errors": sum(f["errors"] for f in files),
             "warnings": sum(f["warnings"] for f in files),
+            "unreadable": sum(1 for f in files if any(x["code"] == "unreadable" for x in f["findings"])),
         },
     }
 

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .body_table import TableDisplay, matrix_lines, render_measure_table
+from .body_table import LABEL_WIDTH, TableDisplay, matrix_lines, render_measure_table
 from .numbers import clean, format_number
 
 
@@ -48,6 +48,7 @@ def render_check_table(doc: dict) -> str:
     lines.append(
         f"{summary['files']} file(s): {summary['valid']} valid, {summary['errors']} error finding(s), "
         f"{summary['warnings']} warning finding(s)"
+        + (f", {summary['unreadable']} file(s) could not be read" if summary.get("unreadable") else "")
     )
     return "\n".join(lines) + "\n"
 
@@ -70,7 +71,7 @@ def render_assembly_table(doc: dict, *, display: TableDisplay | None = None) -> 
                                   title="inertia tensor"))
     for name, view in (total.get("in_frames") or {}).items():
         lines.append(f"total in the frame {name}")
-        lines.append(f"    {'centre of mass x y z':<26}{position(view['center_of_mass'])}  {length.symbol}")
+        lines.append(f"    {'centre of mass x y z':<{LABEL_WIDTH - 4}}{position(view['center_of_mass'])}  {length.symbol}")
         lines.extend(matrix_lines(inertia.from_si(np.asarray(view["inertia_about_com"])), inertia.symbol,
                                   digits=digits, title="inertia about the com"))
     if doc.get("breakdown"):

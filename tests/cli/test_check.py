@@ -44,6 +44,7 @@ def test_check_command_exit_codes_and_units(tmp_path):
     assert doc["schema"] == "meshprops.check"
     assert {k: summary[k] for k in ("files", "valid", "errors", "warnings")} == {"files": 1, "valid": 1, "errors": 0, "warnings": 1}
     assert doc["gate"]["passed"] is True and doc["budget"] is None
+    assert summary["unreadable"] == 0
     assert doc["files"][0]["mesh"]["length_unit"] == "m"
     missing = runner.invoke(app, ["check", str(tmp_path / "absent.stl")])
     assert missing.exit_code == 2 and "no such file" in missing.stderr and "Traceback" not in missing.stderr

@@ -117,6 +117,7 @@ def test_check_reports_every_file_and_writes_the_whole_document(tmp_path, bad_fi
         assert by_name[name]["valid"] is False
         assert [f["code"] for f in by_name[name]["findings"]] == ["unreadable"]
     assert by_name["open.obj"]["valid"] is False and by_name["open.obj"]["findings"][0]["code"] != "unreadable"
+    assert doc["summary"]["files"] == 4 and doc["summary"]["unreadable"] == 2
     table = run("check", *bad_files)
     assert table.returncode == 2
     for path in bad_files:
