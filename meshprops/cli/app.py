@@ -46,6 +46,17 @@ def _root(
 FILES_METAVAR = "FILES..."
 
 
+class Command(typer.core.TyperCommand):
+    """A command whose usage line names required arguments plainly (``FILES...``, not ``{FILES...}``).
+
+    Use it as ``@app.command(cls=Command)``.
+    """
+
+    def collect_usage_pieces(self, ctx):
+        pieces = super().collect_usage_pieces(ctx)
+        return [piece[1:-1] if piece.startswith("{") and piece.endswith("}") else piece for piece in pieces]
+
+
 def say(message: str) -> None:
     print(f"meshprops: {message}", file=sys.stderr)
 
