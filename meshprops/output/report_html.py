@@ -19,7 +19,7 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 from .drawing import Scene, scene_to_svg
-from .table import _fmt as _table_format
+from .numbers import format_number as _table_format  # the terminal table's digits
 
 def table_number(value: float) -> str:
     """A value in the digits of the terminal table (its own formatter, without the sign's padding)."""
@@ -118,8 +118,8 @@ def values_table(item: dict, path: str, *, number_text: Callable[[float], str] =
         rows.append(_vector_row(label, f"{path}.inertia_about_com.{k}", row, "kg·m²" if k == 0 else "", number_text))
     products = item.get("products_of_inertia")
     if products:
-        cells = "".join(_number_cell(f"{path}.products_of_inertia.{key}", products[key], number_text) for key in ("xy", "yz", "zx"))
-        rows.append(f"<tr><th>products of inertia P<sub>xy</sub> P<sub>yz</sub> P<sub>zx</sub></th>{cells}<td class='unit'>kg·m²</td></tr>")
+        cells = "".join(_number_cell(f"{path}.products_of_inertia.{key}", products[key], number_text) for key in ("xy", "xz", "yz"))
+        rows.append(f"<tr><th>products of inertia P<sub>xy</sub> P<sub>xz</sub> P<sub>yz</sub></th>{cells}<td class='unit'>kg·m²</td></tr>")
     if item.get("radii_of_gyration"):
         rows.append(_vector_row("radii of gyration", f"{path}.radii_of_gyration", item["radii_of_gyration"], "m", number_text))
     rows.append(_vector_row("principal moments I1 ≤ I2 ≤ I3", f"{path}.principal_moments", item["principal_moments"], "kg·m²", number_text))

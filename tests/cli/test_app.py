@@ -33,7 +33,8 @@ def assert_one_error_line(err: str, *needles: str) -> None:
 def test_an_unreadable_file_is_one_line_and_exit_2(capsys, tmp_path):
     missing = tmp_path / "missing.stl"
     code, out, err = run_main(capsys, "measure", missing)
-    assert code == EXIT_USAGE == 2 and out == ""
+    assert code == EXIT_USAGE == 2
+    assert str(missing) in out and "unreadable" in out  # the report still lists the file (issue 9)
     assert_one_error_line(err, str(missing), "no such file")
 
 

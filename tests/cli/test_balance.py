@@ -119,7 +119,7 @@ def test_manifest_body_off_centre_validates_and_reads_its_own_unit(disk, tmp_pat
     # A body placed 0.1 mm off the shaft in a manifest whose unit is mm: m e again.
     manifest = tmp_path / "rotor.toml"
     manifest.write_text(
-        f'[assembly]\nname = "fan"\nlength_unit = "mm"\n\n[[body]]\nname = "disk"\nmesh = "{disk.name}"\n'
+        f'[assembly]\nname = "fan"\nlength_unit = "mm"\nmanifest_version = 1\n\n[[body]]\nname = "disk"\nmesh = "{disk.name}"\n'
         f"density = {DENSITY}\ntranslation = [0, 0.1, 0]\n"
     )
     result = invoke(manifest, *shaft(), "--json")

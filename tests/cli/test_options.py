@@ -73,7 +73,7 @@ def test_spin_option_combinations_that_make_no_sense_are_refused(spin, rpm, axis
 def manifest(tmp_path):
     write_binary_stl(tmp_path / "cube.stl", shapes.triangles_of(*shapes.box((10.0, 10.0, 10.0))))
     (tmp_path / "one.toml").write_text(
-        '[assembly]\nlength_unit = "cm"\n[[body]]\nname = "cube"\nmesh = "cube.stl"\ndensity = 1000\n'
+        '[assembly]\nlength_unit = "cm"\nmanifest_version = 1\n[[body]]\nname = "cube"\nmesh = "cube.stl"\ndensity = 1000\n'
         "[points]\nmast_base = [1, 2, 3]\n",
         encoding="utf-8",
     )

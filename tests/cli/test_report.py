@@ -21,7 +21,7 @@ from typer.testing import CliRunner
 from meshprops.cli import app
 from meshprops.geometry import shapes
 from meshprops.io import writers
-from meshprops.output.table import _fmt as table_format
+from meshprops.output.numbers import format_number as table_format  # the terminal table's digits
 
 runner = CliRunner()
 ROVER = ROOT / "sample_meshes" / "rover.toml"
@@ -114,7 +114,7 @@ def test_part_values_equal_measure_json_in_the_table_digits(tmp_path, part_stl):
     printed = _printed_values(page_path.read_text(encoding="utf-8"))
     paths = {path for path, _, _ in printed}
     for required in ("bodies.0.mass", "bodies.0.volume", "bodies.0.center_of_mass.2", "bodies.0.inertia_about_com.0.1",
-                     "bodies.0.principal_moments.2", "bodies.0.principal_axes.2.0", "bodies.0.products_of_inertia.zx"):
+                     "bodies.0.principal_moments.2", "bodies.0.principal_axes.2.0", "bodies.0.products_of_inertia.xz"):
         assert required in paths, required
     for path, value, text in printed:
         expected = _resolve(document, path)

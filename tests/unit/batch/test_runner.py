@@ -100,7 +100,7 @@ def cube_files(tmp_path):
 def test_check_inputs_lists_each_manifest_mesh_once_in_its_body_unit(cube_files):
     manifest = cube_files / "pair.toml"
     manifest.write_text(
-        '[assembly]\nlength_unit = "cm"\n'
+        '[assembly]\nlength_unit = "cm"\nmanifest_version = 1\n'
         '[[body]]\nname = "first"\nmesh = "cube.stl"\ndensity = 1000\n'
         '[[body]]\nname = "second"\nmesh = "cube.stl"\ndensity = 1000\ntranslation = [5, 0, 0]\n'
         '[[body]]\nname = "third"\nmesh = "cube.obj"\ndensity = 1000\nlength_unit = "mm"\n',

@@ -109,6 +109,7 @@ def test_manifest_disk_tilted_on_the_shaft_has_couple_unbalance(tmp_path, disk_m
 [assembly]
 name = "tilted_disk"
 length_unit = "mm"
+manifest_version = 1
 
 [[body]]
 name = "disk"
@@ -143,6 +144,7 @@ def test_manifest_wheel_with_an_off_axis_point_mass(tmp_path, disk_mesh):
 [assembly]
 name = "wheel_with_valve"
 length_unit = "mm"
+manifest_version = 1
 
 [[body]]
 name = "disk"

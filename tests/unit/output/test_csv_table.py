@@ -19,6 +19,7 @@ MANIFEST = """
 [assembly]
 name = "bench_pair"
 length_unit = "mm"
+manifest_version = 1
 
 [[body]]
 name = "plate"

@@ -46,7 +46,7 @@ def test_a_body_has_every_documented_key_and_json_types():
     data = body_to_dict(body)
     assert BODY_KEYS | {"inertia_about_point", "spin"} == set(data)
     assert set(data["mesh"]) == MESH_KEYS
-    assert set(data["products_of_inertia"]) == {"xy", "yz", "zx"}
+    assert list(data["products_of_inertia"]) == ["xy", "xz", "yz"]  # this order everywhere (issue 9)
     assert json.loads(json.dumps(data, allow_nan=False)) == data  # plain JSON types only
     assert type(data["mass"]) is float and all(type(x) is float for x in data["center_of_mass"])
     # m = rho V = 1000 * (0.02 * 0.04 * 0.06) kg (definition of density).
@@ -54,7 +54,7 @@ def test_a_body_has_every_documented_key_and_json_types():
     np.testing.assert_allclose(data["center_of_mass"], [0.005, 0.0, -0.010], atol=1e-17)
     # Products of inertia are minus the off-diagonal tensor entries (the documented convention).
     tensor = np.array(data["inertia_about_com"])
-    assert data["products_of_inertia"]["xy"] == -tensor[0, 1] and data["products_of_inertia"]["zx"] == -tensor[2, 0]
+    assert data["products_of_inertia"]["xy"] == -tensor[0, 1] and data["products_of_inertia"]["xz"] == -tensor[0, 2]
     assert set(data["spin"]) >= {"angular_velocity", "angular_momentum_about_com", "kinetic_energy", "about_point"}
     assert data["inertia_about_point"]["point"] == [0.0, 0.0, 0.0]
 
@@ -82,7 +82,7 @@ def test_finding_to_dict_copies_every_field():
 
 def test_the_document_wraps_bodies_with_schema_version_units_and_cautions():
     doc = document([{"source": "x"}], input_length_unit="in")
-    assert doc["schema"] == SCHEMA_NAME and doc["schema_version"] == 1 and doc["meshprops_version"] == __version__
+    assert doc["schema"] == SCHEMA_NAME and doc["schema_version"] == 2 and doc["meshprops_version"] == __version__
     assert doc["units"]["input_length_unit"] == "in" and doc["units"]["length"] == "m"
     assert doc["cautions"] == list(CAUTIONS) and any("weighing" in c for c in CAUTIONS)
     assert doc["bodies"] == [{"source": "x"}] and "total" not in doc
