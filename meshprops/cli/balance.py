@@ -13,7 +13,7 @@ from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..measure.options import MeasureOptions
 from ..units import DEFAULT_LENGTH_UNIT
 from .app import app, one_line_errors, say, write_report
-from .options import parse_vector
+from .options import length_unit, parse_vector
 
 
 def parse_pair(text: str | None, name: str) -> tuple[float, float] | None:
@@ -67,6 +67,9 @@ def balance(
         precession_axis=parse_vector(precession_axis, "--precession-axis"),
         precession_rate=precession_rate,
     )
+    from ..io.paths import refuse_output_over_inputs
+
+    refuse_output_over_inputs(output, [body])  # (a manifest's meshes are read, never written)
     if body.suffix.lower() == ".toml":
         if units is not None:
             raise InputValueError("--units", "no --units with a manifest (set length_unit in it)", units)
@@ -74,7 +77,7 @@ def balance(
             raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
         options = MeasureOptions()
     else:
-        options = MeasureOptions(length_unit=units or DEFAULT_LENGTH_UNIT, density=density)
+        options = MeasureOptions(length_unit=length_unit(units) if units is not None else DEFAULT_LENGTH_UNIT, density=density)
     measured = measure_rotor(str(body), rotor, options)
     doc = balance_document(measured)
     write_report(to_json(doc) if json_output else render_balance_table(doc), output)

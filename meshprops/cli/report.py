@@ -11,6 +11,7 @@ import typer
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..units import DEFAULT_LENGTH_UNIT
 from .app import app, one_line_errors, say
+from .options import length_unit
 
 
 @app.command()
@@ -34,6 +35,9 @@ def report(
     from ..output.report import assembly_report, mesh_report, write_pngs
     from ..version import __version__
 
+    from ..io.paths import refuse_output_over_inputs
+
+    refuse_output_over_inputs(output, [source])  # before anything is read or written
     footer = f"Written by meshprops {__version__} from {source}. Open it from disk; it loads nothing from elsewhere."
     if source.suffix.lower() == ".toml":
         from ..measure.assembly import measure_assembly
@@ -44,7 +48,9 @@ def report(
             raise InputValueError("--units", "no --units with a manifest (set length_unit in it)", units)
         if density is not None:
             raise InputValueError("--density", "no --density with a manifest (set material or density per body)", density)
-        result = measure_assembly(load_manifest(source), MeasureOptions(overlap_samples=overlap_samples))
+        manifest = load_manifest(source)
+        refuse_output_over_inputs(output, [body.mesh_path for body in manifest.bodies])
+        result = measure_assembly(manifest, MeasureOptions(overlap_samples=overlap_samples))
         page = assembly_report(result, assembly_document(result), footer=footer)
         invalid = [item.measurement for item in result.items if not item.valid]
         warnings = tuple(result.warnings)
@@ -52,7 +58,7 @@ def report(
         from ..measure.body import measure_mesh
         from ..output.serialize import body_to_dict, document
 
-        unit = units or DEFAULT_LENGTH_UNIT
+        unit = length_unit(units) if units is not None else DEFAULT_LENGTH_UNIT
         mesh = load_mesh(source, unit)
         body = measure_mesh(mesh, MeasureOptions(length_unit=unit, density=density), on_invalid="report")
         page = mesh_report(body, mesh, document([body_to_dict(body)], input_length_unit=unit), footer=footer)
@@ -65,5 +71,5 @@ def report(
         say(f"warning: {note}")
     for measurement in invalid:
         first = measurement.validation.errors[0]
-        say(f"{measurement.source}: invalid mesh: {first.code}: {first.message} (the report shows where)")
+        say(f"error: {measurement.source}: invalid mesh: {first.code}: {first.message} (the report shows where)")
     raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)

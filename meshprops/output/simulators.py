@@ -59,6 +59,7 @@ import numpy as np
 from ..errors import InputValueError, SimulatorExportError
 from ..physics.rotations import quaternion_from_rotation, rpy_from_rotation
 from ..version import __version__
+from .numbers import ROUND_OFF_RELATIVE, clean
 
 FORMATS = ("urdf", "sdf", "mjcf")
 
@@ -81,15 +82,14 @@ class SimulatorExport:
 
 
 #: Entries smaller than this fraction of their group's scale are round-off and print as 0.
-ROUND_OFF = 1e-12
+ROUND_OFF = ROUND_OFF_RELATIVE
 
 
 def clean_number(value: float, scale: float) -> str:
-    """Shortest round-trip text of ``value``; ``0`` where ``|value| <= ROUND_OFF * scale`` (round-off)."""
-    value = float(value)
-    if abs(value) <= ROUND_OFF * scale:
-        return "0"
-    return repr(value + 0.0)  # + 0.0 turns -0.0 into 0.0
+    """Shortest round-trip text of ``value``; ``0`` where it is round-off below ``ROUND_OFF * scale``
+    (the shared rule of :func:`meshprops.output.numbers.clean`, which tables use too)."""
+    cleaned = clean(float(value), scale)
+    return "0" if cleaned == 0.0 else repr(cleaned)
 
 
 def _number(value: float) -> str:

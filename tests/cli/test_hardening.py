@@ -339,3 +339,12 @@ def test_assembly_table_says_assembly_axes_and_marks_an_implied_density(tmp_path
     assert done.returncode == 0, done.stderr
     assert "assembly axes" in done.stdout and "input axes" not in done.stdout
     assert "(implied from measured_mass)" in done.stdout
+
+
+@pytest.mark.parametrize("command", [["report"], ["balance", "--axis-point", "0,0,0", "--axis-direction", "0,0,1", "--rpm", "3000", "--grade", "6.3"]])
+def test_other_commands_refuse_an_output_over_their_input(tmp_path, box_stl, command):
+    before = box_stl.read_bytes()
+    done = run(*command[:1], box_stl, *command[1:], "-o", box_stl)
+    assert done.returncode == 2
+    one_error_line(done, "box.stl")
+    assert box_stl.read_bytes() == before
