@@ -86,18 +86,20 @@ def test_the_serial_reference_itself(serial_reference):
         f"{folder}/drive/wheels/plate.stl", f"{folder}/frame/chassis.stl", f"{folder}/frame/spacers.obj",
     ]  # fmt: skip
     assert code == 1  # an invalid mesh among them
-    assert stderr.splitlines() == [f"meshprops: {folder}/drive/cracked.stl: invalid mesh: open_edges: " + _open_message(stdout)]
+    assert stderr.splitlines() == [f"meshprops: error: {folder}/drive/cracked.stl: invalid mesh: open_edges: " + _open_message(stdout)]
 
     lines_code, lines, _ = expected[(False, "check-lines")]
     assert lines_code == 1
     assert [json.loads(line) for line in lines.splitlines()] == json.loads(stdout)["files"]
 
-    # An unreadable file: its one line, exit 2, no document at all (nothing half-reported) ...
+    # An unreadable file: its own entry in the whole document (issue 9), its one line, exit 2 ...
     code, stdout, stderr = expected[(True, "check")]
     torn = f"{fleets[True]}/frame/torn.stl"
-    assert (code, stdout) == (2, "")
-    assert stderr.splitlines() == [f"meshprops: error: {torn}: binary STL truncated: header says 24 triangles, "
-                                   f"expected 1284 bytes, found 642"]
+    assert code == 2
+    entries = {entry["source"]: entry for entry in json.loads(stdout)["files"]}
+    assert len(entries) == 7 and [f["code"] for f in entries[torn]["findings"]] == ["unreadable"]
+    assert f"meshprops: error: {torn}: cannot be read: binary STL truncated: header says 24 triangles, " \
+           f"expected 1284 bytes, found 642" in stderr.splitlines()
     # ... while --json-lines streams every other file and names the broken one at its place.
     code, stdout, stderr = expected[(True, "check-lines")]
     assert code == 2
