@@ -108,6 +108,8 @@ def measure(
         check_solid_target(write_solid, files)
     announce_first_compile()
     work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
+    if not work:  # an empty folder: say so rather than report nothing
+        raise InputValueError("FILES", "at least one mesh file (folders are searched for .stl, .obj, .ply)", [str(f) for f in files])
     settings_key = measure_settings_key(options)
     collected = [] if json_lines and output is not None else None
     outcomes = run_records(work, MeasureRecord(options), lambda job: settings_key, batch, description="measure", collected=collected)

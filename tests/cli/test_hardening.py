@@ -348,3 +348,12 @@ def test_other_commands_refuse_an_output_over_their_input(tmp_path, box_stl, com
     assert done.returncode == 2
     one_error_line(done, "box.stl")
     assert box_stl.read_bytes() == before
+
+
+@pytest.mark.parametrize("command", ["measure", "check"])
+def test_a_folder_without_meshes_is_refused_not_reported_as_nothing(tmp_path, command):
+    (tmp_path / "empty").mkdir()
+    (tmp_path / "empty" / "notes.txt").write_text("no meshes here")
+    done = run(command, tmp_path / "empty")
+    assert done.returncode == 2 and done.stdout == ""
+    one_error_line(done, "at least one mesh file")
