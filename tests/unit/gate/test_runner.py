@@ -32,6 +32,7 @@ MANIFEST = """
 [assembly]
 name = "kit"
 length_unit = "mm"
+manifest_version = 1
 
 [[body]]
 name = "plate"
