@@ -104,7 +104,6 @@ def measure(
         volume_tolerance=volume_tolerance,
     )
     if write_solid is not None:
-        refuse_output_over_inputs(write_solid, files)
         check_solid_target(write_solid, files)
     announce_first_compile()
     work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
