@@ -28,7 +28,13 @@ from concurrent.futures import ProcessPoolExecutor
 from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 
-from ..errors import BatchRunError, InputValueError, MeshpropsError, MissingExtraError, UnsentError
+from ..errors import (
+    BatchRunError,
+    InputValueError,
+    MeshpropsError,
+    MissingExtraError,
+    UnsentError,
+)
 
 #: Largest number of items in one batch (tasks of ~64 small parts take ~0.3 s, so the
 #: ~1 ms (pool) to ~10 ms (cluster) cost of a task stays a few percent).

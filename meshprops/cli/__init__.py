@@ -3,7 +3,16 @@
 Adding a command is one new module here and one name in the import below.
 """
 
-from . import balance, baseline, budget, check, fill_inertials, materials, measure, report  # noqa: F401  (importing a command registers it)
+from . import (  # noqa: F401  (importing a command registers it)
+    balance,
+    baseline,
+    budget,
+    check,
+    fill_inertials,
+    materials,
+    measure,
+    report,
+)
 from .app import app, main
 
 __all__ = ["app", "main"]

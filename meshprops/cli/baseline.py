@@ -29,7 +29,13 @@ def baseline(
     Written atomically; a mesh that fails validation is refused and nothing is written (exit 1).
     """
     from ..gate.baseline import BASELINE_FILE_NAME, empty_baseline, write_baseline
-    from ..gate.runner import backend_map, gate_inputs, iter_mesh_files, load_gate, record
+    from ..gate.runner import (
+        backend_map,
+        gate_inputs,
+        iter_mesh_files,
+        load_gate,
+        record,
+    )
     from ..units import LENGTH_UNITS
 
     if units is not None and units not in LENGTH_UNITS:

@@ -15,8 +15,24 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, EXIT_USAGE, InputValueError
-from .app import FILES_METAVAR, Command, announce_first_compile, app, one_line_errors, say, write_report
-from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, run_records
+from .app import (
+    FILES_METAVAR,
+    Command,
+    announce_first_compile,
+    app,
+    one_line_errors,
+    say,
+    write_report,
+)
+from .batching import (
+    BatchSettings,
+    CachePath,
+    Jobs,
+    JsonLines,
+    Scheduler,
+    ShipContent,
+    run_records,
+)
 from .options import length_unit
 
 
@@ -82,10 +98,22 @@ def check(
 
 def _plain_check(given, units, batch, json_output, output, html_report, solid=None) -> None:
     """Every check on every file through the batch loop; no gate is in force. Exits."""
-    from ..batch.runner import FileJob, check_inputs, check_settings_key, check_task, expand_inputs
+    from ..batch.runner import (
+        FileJob,
+        check_inputs,
+        check_settings_key,
+        check_task,
+        expand_inputs,
+    )
     from ..io.paths import refuse_output_over_inputs
     from ..output.gate import plain_gate_fields
-    from ..output.records import check_record, first_error_line, is_unreadable, records_of, unreadable_check_record
+    from ..output.records import (
+        check_record,
+        first_error_line,
+        is_unreadable,
+        records_of,
+        unreadable_check_record,
+    )
     from ..output.renderers import to_json
     from ..output.serialize import check_document_of
     from ..output.table import render_check_table
@@ -125,10 +153,9 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
 def _gate_check(given, config, baseline, units, density, all_files, batch, json_output, output, html_report) -> None:
     """The gate: configuration, baseline and budget. Exits."""
     from ..gate.runner import backend_map, gate_inputs, iter_mesh_files, run_gate
+    from ..io.paths import refuse_output_over_inputs
     from ..output.gate import gate_check_document, render_gate_text
     from ..output.renderers import to_json
-
-    from ..io.paths import refuse_output_over_inputs
 
     paths, overrides = gate_inputs(given)
     if all_files:

@@ -13,9 +13,32 @@ from ..io.paths import refuse_output_over_inputs
 from ..measure.options import MeasureOptions
 from ..physics.mass import check_density
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
-from .app import FILES_METAVAR, Command, announce_first_compile, app, one_line_errors, say, write_report
-from .batching import BatchSettings, CachePath, Jobs, JsonLines, Scheduler, ShipContent, emit_line, run_records
-from .options import angular_velocity, display_settings, length_unit, manifest_point, parse_vector
+from .app import (
+    FILES_METAVAR,
+    Command,
+    announce_first_compile,
+    app,
+    one_line_errors,
+    say,
+    write_report,
+)
+from .batching import (
+    BatchSettings,
+    CachePath,
+    Jobs,
+    JsonLines,
+    Scheduler,
+    ShipContent,
+    emit_line,
+    run_records,
+)
+from .options import (
+    angular_velocity,
+    display_settings,
+    length_unit,
+    manifest_point,
+    parse_vector,
+)
 from .solid_file import check_solid_target, write_integrated_solid
 
 SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
@@ -54,7 +77,13 @@ def measure(
 ) -> None:
     """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
     from ..batch.runner import FileJob, expand_inputs, measure_settings_key
-    from ..output.records import MeasureRecord, first_error_line, records_of, total_record, unreadable_measure_record
+    from ..output.records import (
+        MeasureRecord,
+        first_error_line,
+        records_of,
+        total_record,
+        unreadable_measure_record,
+    )
     from ..output.renderers import choose_format, format_document
     from ..output.serialize import document
 

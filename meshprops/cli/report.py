@@ -31,11 +31,10 @@ def report(
     """
     from ..io import load_mesh
     from ..io.atomic import write_atomically
+    from ..io.paths import refuse_output_over_inputs
     from ..measure.options import MeasureOptions
     from ..output.report import assembly_report, mesh_report, write_pngs
     from ..version import __version__
-
-    from ..io.paths import refuse_output_over_inputs
 
     refuse_output_over_inputs(output, [source])  # before anything is read or written
     footer = f"Written by meshprops {__version__} from {source}. Open it from disk; it loads nothing from elsewhere."

@@ -86,10 +86,14 @@ import numpy as np
 
 from ..errors import ConfigError, InputValueError
 from ..materials import Material, find_material, user_material
-from ..measure.manifest import _dotted, _find_line, _kind
+from ..measure.manifest import dotted_key, find_key_line, kind_of, read_toml
 from ..units import LENGTH_UNITS, metres_per
 from .baseline import DEFAULT_TOLERANCES, Tolerances
-from .budget import DEFAULT_GROWTH_ALLOWANCE, DEFAULT_GROWTH_ALLOWANCE_SOURCE, MATURITIES
+from .budget import (
+    DEFAULT_GROWTH_ALLOWANCE,
+    DEFAULT_GROWTH_ALLOWANCE_SOURCE,
+    MATURITIES,
+)
 
 CONFIG_FILE_NAME = "meshprops.toml"
 PYPROJECT_FILE_NAME = "pyproject.toml"
@@ -320,24 +324,7 @@ def load_config(path: str | os.PathLike) -> GateConfig:
         names the file, the dotted key and the line where it can.
     """
     path = os.path.abspath(os.fspath(path))
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read()
-    except FileNotFoundError:
-        raise ConfigError(path, None, "no such configuration file") from None
-    except IsADirectoryError:
-        raise ConfigError(path, None, "is a directory, not a configuration file") from None
-    except OSError as exc:
-        raise ConfigError(path, None, f"cannot read: {exc.strerror or exc}") from None
-    try:
-        text = raw.decode("utf-8")
-        data = tomllib.loads(text)
-    except UnicodeDecodeError as exc:
-        raise ConfigError(path, None, f"not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    except tomllib.TOMLDecodeError as exc:
-        found = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
-        message = re.sub(r"\s*\(at line \d+, column \d+\)", "", str(exc))
-        raise ConfigError(path, None, f"TOML syntax error: {message}", line=int(found.group(1)) if found else None) from None
+    data, text = read_toml(path, ConfigError, "configuration")
     prefix: tuple = ()
     if os.path.basename(path) == PYPROJECT_FILE_NAME:
         prefix = ("tool", "meshprops")
@@ -408,7 +395,7 @@ def _globs(reader: _Reader, value, key: tuple) -> tuple[str, ...]:
     if isinstance(value, str):
         value = [value]
     if not isinstance(value, list) or not value:
-        raise reader.fail(key, f"expected a glob or a list of globs, got {_kind(value)} {value!r}")
+        raise reader.fail(key, f"expected a glob or a list of globs, got {kind_of(value)} {value!r}")
     globs = tuple(reader.string(item, key) for item in value)
     for pattern in globs:
         if os.path.isabs(pattern) or pattern.startswith("../"):
@@ -603,15 +590,15 @@ class _Reader:
         self.prefix = prefix
 
     def dotted(self, key: tuple) -> str:
-        return _dotted(self.prefix + key)
+        return dotted_key(self.prefix + key)
 
     def fail(self, key: tuple, message: str) -> ConfigError:
         full = self.prefix + key
-        return ConfigError(self.path, _dotted(full) if full else None, message, line=_find_line(self.lines, full))
+        return ConfigError(self.path, dotted_key(full) if full else None, message, line=find_key_line(self.lines, full))
 
     def table(self, value, key: tuple) -> None:
         if not isinstance(value, dict):
-            raise self.fail(key, f"expected a table, got {_kind(value)}")
+            raise self.fail(key, f"expected a table, got {kind_of(value)}")
 
     def keys(self, table, allowed: frozenset, key: tuple) -> None:
         self.table(table, key)
@@ -621,12 +608,12 @@ class _Reader:
 
     def array(self, value, key: tuple) -> list:
         if not isinstance(value, list) or not all(isinstance(entry, dict) for entry in value):
-            raise self.fail(key, f"expected an array of tables ([[{key[-1]}]]), got {_kind(value)}")
+            raise self.fail(key, f"expected an array of tables ([[{key[-1]}]]), got {kind_of(value)}")
         return value
 
     def number(self, value, key: tuple, *, positive: bool = False, what: str = "a number") -> float:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
-            raise self.fail(key, f"expected {what}, got {_kind(value)} {value!r}")
+            raise self.fail(key, f"expected {what}, got {kind_of(value)} {value!r}")
         value = float(value)
         if not math.isfinite(value):
             raise self.fail(key, f"expected {what} (finite), got {value!r}")
@@ -647,7 +634,7 @@ class _Reader:
 
     def string(self, value, key: tuple) -> str:
         if not isinstance(value, str) or not value.strip():
-            raise self.fail(key, f"expected a non-empty string, got {_kind(value)} {value!r}")
+            raise self.fail(key, f"expected a non-empty string, got {kind_of(value)} {value!r}")
         return value
 
     def choice(self, value, key: tuple, choices) -> str:

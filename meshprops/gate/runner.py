@@ -14,7 +14,13 @@ import numpy as np
 
 from ..errors import EXIT_INVALID, EXIT_OK, InvalidMeshError
 from ..io.hashing import file_sha256
-from .baseline import DEFAULT_TOLERANCES, Baseline, BaselineEntry, Tolerances, compare_with_entry
+from .baseline import (
+    DEFAULT_TOLERANCES,
+    Baseline,
+    BaselineEntry,
+    Tolerances,
+    compare_with_entry,
+)
 from .budget import BudgetItem, BudgetRollup, growth_allowance_for, roll_up
 from .config import ConfigError, GateConfig
 from .rules import Verdict, apply_rule

@@ -16,6 +16,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .faces import near_pairs
+
 #: Default crack tolerance, as a fraction of the bounding-box diagonal.
 CRACK_TOLERANCE_RELATIVE = 1e-6
 
@@ -75,37 +77,6 @@ def open_edge_vertices(faces: np.ndarray) -> tuple[np.ndarray, int]:
     return vertices, int(single.size)
 
 
-def _near_pairs(points: np.ndarray, tolerance: float) -> tuple[np.ndarray, np.ndarray]:
-    """Index pairs (i < j) of ``points`` within ``tolerance`` (grid of cells ``tolerance`` wide)."""
-    cells = np.floor((points - points.min(axis=0)) / tolerance).astype(np.int64)
-    span = cells.max(axis=0) + 3
-
-    def key(c):
-        return ((c[:, 0] + 1) * span[1] + (c[:, 1] + 1)) * span[2] + (c[:, 2] + 1)
-
-    keys = key(cells)
-    order = np.argsort(keys, kind="stable")
-    sorted_keys = keys[order]
-    firsts, seconds = [], []
-    for dx in (-1, 0, 1):
-        for dy in (-1, 0, 1):
-            for dz in (-1, 0, 1):
-                target = key(cells + np.array([dx, dy, dz]))
-                low = np.searchsorted(sorted_keys, target, side="left")
-                high = np.searchsorted(sorted_keys, target, side="right")
-                counts = high - low
-                if not counts.any():
-                    continue
-                source = np.repeat(np.arange(points.shape[0]), counts)
-                offsets = np.arange(counts.sum()) - np.repeat(np.cumsum(counts) - counts, counts)
-                other = order[np.repeat(low, counts) + offsets]
-                keep = source < other
-                firsts.append(source[keep])
-                seconds.append(other[keep])
-    first, second = np.concatenate(firsts), np.concatenate(seconds)
-    distance = np.linalg.norm(points[first] - points[second], axis=1)
-    close = distance <= tolerance
-    return first[close], second[close]
 
 
 def close_cracks(vertices: np.ndarray, faces: np.ndarray, tolerance: float) -> CrackClosure:
@@ -127,7 +98,7 @@ def close_cracks(vertices: np.ndarray, faces: np.ndarray, tolerance: float) -> C
     unchanged = CrackClosure(faces, np.arange(faces.shape[0]), 0, 0.0, 0, open_before, open_before, float(tolerance))
     if tolerance <= 0 or boundary.size < 2:
         return unchanged
-    first, second = _near_pairs(vertices[boundary], float(tolerance))
+    first, second = near_pairs(vertices[boundary], float(tolerance), coincident=True)
     if first.size == 0:
         return unchanged
     # union-find over the boundary vertices: hook roots to the smaller root, then jump pointers

@@ -40,8 +40,10 @@ def face_blocks(mesh: Mesh, block_faces: int = BLOCK_FACES):
         yield start, face_corners(mesh, np.arange(start, min(mesh.face_count, start + block_faces)))
 
 
-def near_pairs(points: np.ndarray, tolerance: float) -> tuple[np.ndarray, np.ndarray]:
-    """Pairs ``(i, j)``, ``i < j``, of distinct rows of ``points`` (N, 3) closer than ``tolerance``.
+def near_pairs(points: np.ndarray, tolerance: float, *, coincident: bool = False) -> tuple[np.ndarray, np.ndarray]:
+    """Pairs ``(i, j)``, ``i < j``, of rows of ``points`` (N, 3) within ``tolerance`` of each other.
+
+    Rows at exactly the same position are paired only with ``coincident``.
 
     A uniform grid of cell ``tolerance``: close points lie in the same or a
     neighbouring cell; each of the 27 neighbour offsets is one ``searchsorted``.
@@ -79,7 +81,7 @@ def near_pairs(points: np.ndarray, tolerance: float) -> tuple[np.ndarray, np.nda
         return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=np.int64)
     first, second = np.concatenate(firsts), np.concatenate(seconds)
     distance = np.linalg.norm(points[first] - points[second], axis=1)
-    close = (distance <= tolerance) & (distance > 0)
+    close = (distance <= tolerance) if coincident else (distance <= tolerance) & (distance > 0)
     return first[close], second[close]
 
 

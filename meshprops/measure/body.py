@@ -16,14 +16,20 @@ import numpy as np
 
 from ..errors import InputValueError, InvalidMeshError
 from ..io import Mesh, load_mesh
+from ..physics.finite import require_finite
 from ..physics.mass import MassProperties, check_density
 from ..physics.moments import Moments
 from ..physics.principal import PrincipalFrame, principal_frame
-from ..physics.finite import require_finite
 from ..physics.spin import SpinState, spin
 from ..validation.density import density_findings
+from ..validation.findings import (
+    ERROR,
+    UNREADABLE,
+    Finding,
+    ValidationReport,
+    unreadable_report,
+)
 from ..validation.solid import Solid, resolve_solid
-from ..validation.findings import ERROR, UNREADABLE, Finding, ValidationReport, unreadable_report
 from .options import DEFAULT_DENSITY, MeasureOptions
 
 

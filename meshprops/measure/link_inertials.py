@@ -23,7 +23,13 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import InputValueError, ManifestError, MeshFileError, ModelFileError, UnitError
+from ..errors import (
+    InputValueError,
+    ManifestError,
+    MeshFileError,
+    ModelFileError,
+    UnitError,
+)
 from ..io import load_mesh
 from ..materials import Material, find_material
 from ..physics.link_frame import in_link_frame, with_mass
@@ -34,7 +40,13 @@ from ..units import LENGTH_UNITS
 from ..validation.findings import Finding
 from .body import measure_mesh
 from .options import DEFAULT_DENSITY
-from .robot_model import LinkInertial, MeshGeometry, ModelLink, RobotModel, load_robot_model
+from .robot_model import (
+    LinkInertial,
+    MeshGeometry,
+    ModelLink,
+    RobotModel,
+    load_robot_model,
+)
 
 MAP_KEYS = frozenset({"material", "density", "measured_mass"})
 #: An old tensor within this of the identity matrix (kg·m², each entry) is the usual placeholder.

@@ -43,7 +43,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import InputValueError, ManifestError
+from ..errors import InputValueError, ManifestError, UnitError
 from ..materials import Material, find_material, user_material
 from ..physics.principal import principal_frame
 from ..physics.rotations import (
@@ -51,7 +51,6 @@ from ..physics.rotations import (
     rotation_from_axis_angle,
     rotation_from_rpy,
 )
-from ..errors import UnitError
 from ..units import LENGTH_UNITS, canonical_length_unit, metres_per
 
 MANIFEST_VERSION = 1
@@ -157,18 +156,18 @@ class ManifestReader:
         self.lines = text.splitlines()
 
     def fail(self, key: tuple, message: str) -> ManifestError:
-        return ManifestError(self.path, _dotted(key), message, line=_find_line(self.lines, key))
+        return ManifestError(self.path, dotted_key(key), message, line=find_key_line(self.lines, key))
 
     def keys(self, table: dict, allowed: frozenset, key: tuple) -> None:
         if not isinstance(table, dict):
-            raise self.fail(key, f"expected a table, got {_kind(table)}")
+            raise self.fail(key, f"expected a table, got {kind_of(table)}")
         for name in table:
             if name not in allowed:
                 raise self.fail(key + (name,), f"unknown key {name!r}; expected one of {', '.join(sorted(allowed))}")
 
     def number(self, value, key: tuple, *, positive: bool = False, what: str = "a number") -> float:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
-            raise self.fail(key, f"expected {what}, got {_kind(value)} {value!r}")
+            raise self.fail(key, f"expected {what}, got {kind_of(value)} {value!r}")
         value = float(value)
         if not math.isfinite(value):
             raise self.fail(key, f"expected {what} (finite), got {value!r}")
@@ -188,7 +187,7 @@ class ManifestReader:
 
     def string(self, value, key: tuple) -> str:
         if not isinstance(value, str) or not value.strip():
-            raise self.fail(key, f"expected a non-empty string, got {_kind(value)} {value!r}")
+            raise self.fail(key, f"expected a non-empty string, got {kind_of(value)} {value!r}")
         return value
 
     def name(self, value, key: tuple) -> str:
@@ -235,13 +234,13 @@ class ManifestReader:
         return rotation_from_rpy(math.radians(roll), math.radians(pitch), math.radians(yaw))
 
 
-def _kind(value) -> str:
+def kind_of(value) -> str:
     return {bool: "a boolean", int: "an integer", float: "a number", str: "a string", list: "an array", dict: "a table"}.get(
         type(value), type(value).__name__
     )
 
 
-def _dotted(key: tuple) -> str:
+def dotted_key(key: tuple) -> str:
     text = ""
     for part in key:
         text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else str(part))
@@ -254,7 +253,7 @@ _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\]]+?)\s*\]\]?\s*(#.*)?$")
 _KEY = re.compile(r"^\s*([A-Za-z0-9_\-\.\"' ]+?)\s*=")
 
 
-def _find_line(lines: list[str], key: tuple) -> int | None:
+def find_key_line(lines: list[str], key: tuple) -> int | None:
     """Best-effort 1-based line of ``key`` (e.g. ``("body", 2, "material")``) in the manifest text.
 
     TOML parsers do not report positions of keys, so the text is scanned: table
@@ -299,6 +298,34 @@ def _find_line(lines: list[str], key: tuple) -> int | None:
     return best_line
 
 
+def read_toml(path: str, error: type, what: str) -> tuple[dict, str]:
+    """Parse the TOML file ``path``; returns ``(data, text)``.
+
+    Every problem (missing, a folder, unreadable, not UTF-8, a TOML syntax error with its line)
+    raises ``error(path, None, message, line=...)``: :class:`ManifestError` here, the gate's
+    ``ConfigError`` for its configuration; ``what`` names the kind of file in the messages.
+    """
+    try:
+        with open(path, "rb") as handle:
+            raw = handle.read()
+    except FileNotFoundError:
+        raise error(path, None, f"no such {what} file") from None
+    except IsADirectoryError:
+        raise error(path, None, f"is a directory, not a {what} file") from None
+    except OSError as exc:
+        raise error(path, None, f"cannot read: {exc.strerror or exc}") from None
+    try:
+        text = raw.decode("utf-8")
+        return tomllib.loads(text), text
+    except UnicodeDecodeError as exc:
+        raise error(path, None, f"not UTF-8 text ({exc.reason} at byte {exc.start})") from None
+    except tomllib.TOMLDecodeError as exc:
+        found = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
+        message = re.sub(r"\s*\(at line \d+, column \d+\)", "", str(exc))
+        line = int(found.group(1)) if found else None
+        raise error(path, None, f"TOML syntax error: {message}", line=line) from None
+
+
 def load_manifest(path: str | os.PathLike) -> Manifest:
     """Read and check an assembly manifest (TOML).
 
@@ -309,25 +336,7 @@ def load_manifest(path: str | os.PathLike) -> Manifest:
         or missing value; the message names the manifest, the key and the line.
     """
     path = os.fspath(path)
-    try:
-        with open(path, "rb") as handle:
-            raw = handle.read()
-    except FileNotFoundError:
-        raise ManifestError(path, None, "no such manifest file") from None
-    except IsADirectoryError:
-        raise ManifestError(path, None, "is a directory, not a manifest") from None
-    except OSError as exc:
-        raise ManifestError(path, None, f"cannot read: {exc.strerror or exc}") from None
-    try:
-        text = raw.decode("utf-8")
-        data = tomllib.loads(text)
-    except UnicodeDecodeError as exc:
-        raise ManifestError(path, None, f"not UTF-8 text ({exc.reason} at byte {exc.start})") from None
-    except tomllib.TOMLDecodeError as exc:
-        found = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
-        message = re.sub(r"\s*\(at line \d+, column \d+\)", "", str(exc))
-        line = int(found.group(1)) if found else None
-        raise ManifestError(path, None, f"TOML syntax error: {message}", line=line) from None
+    data, text = read_toml(path, ManifestError, "manifest")
     return parse_manifest(data, path=path, text=text)
 
 
@@ -354,7 +363,7 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
     materials: dict[str, Material] = {}
     table = data.get("materials", {})
     if not isinstance(table, dict):
-        raise reader.fail(("materials",), f"expected a table, got {_kind(table)}")
+        raise reader.fail(("materials",), f"expected a table, got {kind_of(table)}")
     for material_name, entry in table.items():
         key = ("materials", material_name)
         reader.name(material_name, key)
@@ -375,7 +384,7 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
         if item_name == "total":
             raise reader.fail(key, "the name 'total' is reserved for the assembly total")
         if item_name in names:
-            raise reader.fail(key, f"duplicate name {item_name!r} (also at {_dotted(names[item_name])})")
+            raise reader.fail(key, f"duplicate name {item_name!r} (also at {dotted_key(names[item_name])})")
         names[item_name] = key
 
     bodies = []
@@ -461,7 +470,7 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
     points = {}
     table = data.get("points", {})
     if not isinstance(table, dict):
-        raise reader.fail(("points",), f"expected a table, got {_kind(table)}")
+        raise reader.fail(("points",), f"expected a table, got {kind_of(table)}")
     for point_name, value in table.items():
         reader.name(point_name, ("points", point_name))
         points[point_name] = reader.vector(value, ("points", point_name)) * scale
@@ -469,7 +478,7 @@ def parse_manifest(data: dict, *, path: str = "<manifest>", text: str = "") -> M
     frames = {}
     table = data.get("frames", {})
     if not isinstance(table, dict):
-        raise reader.fail(("frames",), f"expected a table, got {_kind(table)}")
+        raise reader.fail(("frames",), f"expected a table, got {kind_of(table)}")
     for frame_name, entry in table.items():
         key = ("frames", frame_name)
         reader.name(frame_name, key)

@@ -51,7 +51,11 @@ import numpy as np
 
 from ..errors import ModelFileError
 from ..physics.mass import rotate_tensor
-from ..physics.rotations import rotation_from_axis_angle, rotation_from_quaternion, rotation_from_rpy
+from ..physics.rotations import (
+    rotation_from_axis_angle,
+    rotation_from_quaternion,
+    rotation_from_rpy,
+)
 
 MODEL_FORMATS = ("urdf", "sdf", "mjcf")
 #: Mesh file formats meshprops reads.

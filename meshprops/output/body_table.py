@@ -22,6 +22,7 @@ import numpy as np
 from ..units import DISPLAY_SYSTEMS, DisplaySystem
 from .numbers import DEFAULT_DIGITS, clean, format_number, quantity_scale
 
+
 @dataclass(frozen=True, slots=True, eq=False)
 class TableDisplay:
     """How the table shows numbers: the display unit system and the significant digits."""

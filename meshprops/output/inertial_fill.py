@@ -24,6 +24,7 @@ import numpy as np
 
 from .simulators import clean_number
 
+
 @dataclass(frozen=True, slots=True, eq=False)
 class NewInertial:
     """An inertial to write, in the link frame.

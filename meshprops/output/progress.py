@@ -18,7 +18,13 @@ SHOW_AFTER_SECONDS = 1.5
 
 
 def _rich_columns():
-    from rich.progress import BarColumn, MofNCompleteColumn, ProgressColumn, TextColumn, TimeRemainingColumn
+    from rich.progress import (
+        BarColumn,
+        MofNCompleteColumn,
+        ProgressColumn,
+        TextColumn,
+        TimeRemainingColumn,
+    )
     from rich.text import Text
 
     class RateColumn(ProgressColumn):

@@ -23,8 +23,8 @@ from ..measure.body import measure_mesh, unreadable_measurement
 from ..measure.options import MeasureOptions
 from ..measure.total import measure_total
 from ..physics.mass import MassProperties
-from ..validation.solid import unreadable_check
 from ..validation.findings import UNREADABLE
+from ..validation.solid import unreadable_check
 from .serialize import body_to_dict, check_to_dict, summed_mesh
 
 

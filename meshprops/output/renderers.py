@@ -12,9 +12,9 @@ from collections.abc import Callable
 from functools import partial
 
 from ..errors import InputValueError
+from .body_table import TableDisplay
 from .csv_table import breakdown_csv
 from .simulators import inertial_blocks
-from .body_table import TableDisplay
 from .table import render_assembly_table, render_table
 
 

@@ -28,7 +28,13 @@ from .drawing import (
     draw_views,
 )
 from .raster import scene_to_png_bytes
-from .report_html import CheckRow, FindingRow, render_check_report, render_report, table_number
+from .report_html import (
+    CheckRow,
+    FindingRow,
+    render_check_report,
+    render_report,
+    table_number,
+)
 
 _EMPTY_TRIANGLES = np.zeros((0, 3, 3))
 

@@ -21,6 +21,7 @@ from dataclasses import dataclass
 from .drawing import Scene, scene_to_svg
 from .numbers import format_number as _table_format  # the terminal table's digits
 
+
 def table_number(value: float) -> str:
     """A value in the digits of the terminal table (its own formatter, without the sign's padding)."""
     return _table_format(value).strip()

@@ -36,6 +36,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..geometry.crossing import Crossings, find_crossings
 from ..geometry.faces import (
     SMALL_BLOCK_FACES,
     corner_extreme,
@@ -47,7 +48,6 @@ from ..geometry.faces import (
     reduce_by_label,
 )
 from ..geometry.inside import winding_numbers
-from ..geometry.crossing import Crossings, find_crossings
 from ..geometry.topology import (
     EdgeUse,
     boundary_loop_count,
@@ -65,8 +65,6 @@ from ..io import Mesh
 from ..physics.moments import Moments
 from ..units import LENGTH_UNITS
 from .findings import ERROR, WARNING, WHERE_LIMIT, Finding, ValidationReport, where
-
-
 
 #: A face is degenerate (zero area) when its height over its longest edge is below
 #: this fraction of the bounding-box diagonal (plus the rounding of its coordinates).

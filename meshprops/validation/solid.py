@@ -45,7 +45,16 @@ from .checks import (
     unit_findings,
     validate,
 )
-from .findings import ERROR, UNREADABLE, WARNING, WHERE_LIMIT, Finding, ValidationReport, unreadable_report, where
+from .findings import (
+    ERROR,
+    UNREADABLE,
+    WARNING,
+    WHERE_LIMIT,
+    Finding,
+    ValidationReport,
+    unreadable_report,
+    where,
+)
 
 #: Default bound on the volume effect of self-crossings, relative to the volume.
 VOLUME_TOLERANCE_RELATIVE = 1e-6

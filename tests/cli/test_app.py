@@ -10,7 +10,13 @@ import pytest
 import typer
 
 from meshprops.cli.app import main, one_line_errors, say, write_report
-from meshprops.errors import EXIT_INVALID, EXIT_USAGE, InputValueError, InvalidMeshError, MeshFileError
+from meshprops.errors import (
+    EXIT_INVALID,
+    EXIT_USAGE,
+    InputValueError,
+    InvalidMeshError,
+    MeshFileError,
+)
 from meshprops.geometry import shapes
 from meshprops.io.writers import write_obj
 

@@ -14,7 +14,6 @@ from pathlib import Path
 
 import pytest
 import yaml
-
 from paths import ROOT, TESTS
 
 from meshprops.geometry import shapes

@@ -7,7 +7,6 @@ exit codes are what a user (or the pre-commit hook) sees.
 from __future__ import annotations
 
 import json
-import math
 import os
 import re
 import shutil
@@ -15,7 +14,6 @@ import subprocess
 import sys
 from pathlib import Path
 
-import numpy as np
 import pytest
 
 from meshprops.geometry import shapes

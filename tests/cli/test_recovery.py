@@ -11,7 +11,6 @@ from paths import TESTS
 from typer.testing import CliRunner
 
 from meshprops.cli import app
-from meshprops.io import load_mesh
 
 runner = CliRunner()
 WARNINGS = TESTS / "meshes" / "warnings"

@@ -21,7 +21,9 @@ from typer.testing import CliRunner
 from meshprops.cli import app
 from meshprops.geometry import shapes
 from meshprops.io import writers
-from meshprops.output.numbers import format_number as table_format  # the terminal table's digits
+from meshprops.output.numbers import (
+    format_number as table_format,  # the terminal table's digits
+)
 
 runner = CliRunner()
 ROVER = ROOT / "sample_meshes" / "rover.toml"

@@ -17,9 +17,9 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from meshprops.cli import main
 from meshprops.geometry import shapes
 from meshprops.io import writers
-from meshprops.cli import main
 
 NON_FINITE = re.compile(r"\b(inf|nan|infinity)\b", re.IGNORECASE)
 finite = st.floats(allow_nan=False, allow_infinity=False)

@@ -22,7 +22,13 @@ from meshprops.batch.backends import (
     choose_batch_size,
     run_batch,
 )
-from meshprops.errors import BatchRunError, MeshpropsError, MissingExtraError, UnitError, UnsentError
+from meshprops.errors import (
+    BatchRunError,
+    MeshpropsError,
+    MissingExtraError,
+    UnitError,
+    UnsentError,
+)
 from meshprops.units import LENGTH_UNITS, metres_per
 
 

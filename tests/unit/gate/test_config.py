@@ -5,10 +5,10 @@ import re
 import numpy as np
 import pytest
 
+from meshprops.errors import ConfigError
 from meshprops.gate import config as gate_config
 from meshprops.gate.baseline import DEFAULT_TOLERANCES
 from meshprops.gate.budget import DEFAULT_GROWTH_ALLOWANCE
-from meshprops.errors import ConfigError
 from meshprops.gate.config import find_config, glob_matches, load_config
 
 

@@ -3,18 +3,15 @@ and its volume bound against inclusion–exclusion."""
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import numpy as np
 import pytest
 from paths import TESTS
 
 from meshprops.geometry import shapes
 from meshprops.geometry.crossing import crossing_volume_bound, find_crossings
-from meshprops.io import load_mesh, mesh_from_triangles
-
 from meshprops.geometry.intersections import self_intersection_pairs
 from meshprops.geometry.welding import weld_exact
+from meshprops.io import load_mesh, mesh_from_triangles
 
 MESHES = TESTS / "meshes"
 

@@ -10,7 +10,13 @@ import pytest
 from meshprops.errors import MeshFileError, UnitError
 from meshprops.geometry import shapes
 from meshprops.io import load_mesh
-from meshprops.io.mesh import MAX_ABS_COORDINATE, Mesh, checked_mesh, mesh_from_arrays, mesh_from_triangles
+from meshprops.io.mesh import (
+    MAX_ABS_COORDINATE,
+    Mesh,
+    checked_mesh,
+    mesh_from_arrays,
+    mesh_from_triangles,
+)
 from meshprops.io.writers import write_binary_stl
 
 FAR = 1.0e7  # mm: a part 10 km from the file's origin

@@ -1,4 +1,5 @@
 import re
+
 """Assemblies: composite bodies against hand-computed closed forms, placements, calibration,
 point masses, named points and frames, breakdown, spin, invalid bodies, and the demo manifest.
 

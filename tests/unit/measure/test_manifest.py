@@ -1,4 +1,5 @@
 import re
+
 """Every manifest error: a ManifestError (also a ValueError) naming the manifest, the key and the
 line; through the CLI one line on stderr, exit code 2, nothing on stdout, no traceback."""
 

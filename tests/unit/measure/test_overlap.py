@@ -1,4 +1,5 @@
 import re
+
 """Overlap detection: R-tree broad phase, exact point-in-solid test, Monte-Carlo shared volume.
 
 Reference values are exact geometry worked by hand (intersections of boxes and prisms), and an

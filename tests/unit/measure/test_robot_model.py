@@ -19,7 +19,6 @@ from meshprops.measure.robot_model import load_robot_model
 from meshprops.output.inertial_fill import NewInertial, filled_model_bytes
 from meshprops.physics.rotations import rotation_from_quaternion, rotation_from_rpy
 
-
 URDF = """<?xml version="1.0"?>
 <!-- a two-link arm; the comment must survive -->
 <robot name="arm">

@@ -7,7 +7,12 @@ import json
 import numpy as np
 import pytest
 
-from meshprops.output.balance import BALANCE_CAUTIONS, balance_result_to_dict, grade_table_to_dict, render_balance_table
+from meshprops.output.balance import (
+    BALANCE_CAUTIONS,
+    balance_result_to_dict,
+    grade_table_to_dict,
+    render_balance_table,
+)
 from meshprops.physics.balance import BALANCE_GRADES, balance
 
 

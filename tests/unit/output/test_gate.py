@@ -7,7 +7,12 @@ import pytest
 
 from meshprops.gate.budget import BudgetItem, roll_up
 from meshprops.gate.rules import FAIL, Verdict
-from meshprops.output.gate import budget_to_dict, render_budget_table, render_gate_text, verdict_to_dict
+from meshprops.output.gate import (
+    budget_to_dict,
+    render_budget_table,
+    render_gate_text,
+    verdict_to_dict,
+)
 
 
 def test_a_verdict_has_the_contract_keys_in_plain_json():

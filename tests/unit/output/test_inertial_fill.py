@@ -9,7 +9,11 @@ import numpy as np
 from meshprops.geometry import shapes
 from meshprops.io.writers import write_binary_stl
 from meshprops.measure.robot_model import load_robot_model
-from meshprops.output.inertial_fill import NewInertial, filled_model_bytes, inertial_element
+from meshprops.output.inertial_fill import (
+    NewInertial,
+    filled_model_bytes,
+    inertial_element,
+)
 
 TENSOR = np.array([[2.0e-3, -1.0e-4, 0.0], [-1.0e-4, 3.0e-3, 5.0e-17], [0.0, 5.0e-17, 4.0e-3]])
 INERTIAL = NewInertial(1.25, np.array([0.01, -0.02, 1e-18]), TENSOR, 0.1)

@@ -7,7 +7,14 @@ import math
 import numpy as np
 import pytest
 
-from meshprops.output.numbers import ROUND_OFF_RELATIVE, check_digits, clean, clean_float, format_clean, format_number
+from meshprops.output.numbers import (
+    ROUND_OFF_RELATIVE,
+    check_digits,
+    clean,
+    clean_float,
+    format_clean,
+    format_number,
+)
 
 
 def test_round_off_in_a_tensor_becomes_zero():

@@ -8,7 +8,13 @@ import numpy as np
 import pytest
 
 from meshprops.geometry import shapes
-from meshprops.output.drawing import VIEWS, BodyPicture, InertiaPicture, Picture, draw_view
+from meshprops.output.drawing import (
+    VIEWS,
+    BodyPicture,
+    InertiaPicture,
+    Picture,
+    draw_view,
+)
 
 pytest.importorskip("matplotlib")
 

@@ -14,7 +14,13 @@ from meshprops.geometry import shapes
 from meshprops.io import load_mesh, writers
 from meshprops.measure.body import measure_mesh
 from meshprops.measure.options import MeasureOptions
-from meshprops.output.records import MeasureRecord, check_record, first_error_line, mass_properties_of, total_record
+from meshprops.output.records import (
+    MeasureRecord,
+    check_record,
+    first_error_line,
+    mass_properties_of,
+    total_record,
+)
 from meshprops.output.serialize import body_to_dict, check_to_dict
 from meshprops.validation.solid import check_mesh
 

@@ -13,7 +13,13 @@ from meshprops.errors import InputValueError
 from meshprops.geometry import shapes
 from meshprops.io import mesh_from_arrays
 from meshprops.measure.body import measure_mesh
-from meshprops.output.renderers import OUTPUT_FORMATS, RENDERERS, choose_format, format_document, to_json
+from meshprops.output.renderers import (
+    OUTPUT_FORMATS,
+    RENDERERS,
+    choose_format,
+    format_document,
+    to_json,
+)
 from meshprops.output.serialize import body_to_dict, document
 from meshprops.output.table import render_table
 

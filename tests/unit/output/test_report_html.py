@@ -6,7 +6,13 @@ import numpy as np
 import trimesh
 from headless_browser import external_references, open_page, pixel_statistics
 
-from meshprops.output.drawing import BodyPicture, Highlight, InertiaPicture, Picture, draw_views
+from meshprops.output.drawing import (
+    BodyPicture,
+    Highlight,
+    InertiaPicture,
+    Picture,
+    draw_views,
+)
 from meshprops.output.report_html import FindingRow, render_report, values_table
 
 

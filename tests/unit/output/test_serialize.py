@@ -23,8 +23,8 @@ from meshprops.output.serialize import (
     matrix_to_list,
     vector_to_list,
 )
-from meshprops.validation.solid import check_mesh
 from meshprops.validation.findings import WARNING, Finding
+from meshprops.validation.solid import check_mesh
 from meshprops.version import __version__
 
 BODY_KEYS = {

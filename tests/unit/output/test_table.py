@@ -13,8 +13,19 @@ from meshprops.geometry import shapes
 from meshprops.io import mesh_from_arrays
 from meshprops.measure.body import measure_mesh
 from meshprops.output.numbers import clean, format_number
-from meshprops.output.serialize import CAUTIONS, body_to_dict, check_document, document, materials_document
-from meshprops.output.table import render_assembly_table, render_check_table, render_materials_table, render_table
+from meshprops.output.serialize import (
+    CAUTIONS,
+    body_to_dict,
+    check_document,
+    document,
+    materials_document,
+)
+from meshprops.output.table import (
+    render_assembly_table,
+    render_check_table,
+    render_materials_table,
+    render_table,
+)
 from meshprops.validation.solid import check_mesh
 
 

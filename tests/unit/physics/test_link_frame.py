@@ -14,11 +14,10 @@ import numpy as np
 import pytest
 import trimesh
 
-from meshprops.physics.mass import MassProperties
-from meshprops.physics.rotations import rotation_from_rpy
-
 from meshprops.errors import InputValueError
 from meshprops.physics.link_frame import in_link_frame, scaled, with_mass
+from meshprops.physics.mass import MassProperties
+from meshprops.physics.rotations import rotation_from_rpy
 
 
 def box_properties(sides, density, center=(0.0, 0.0, 0.0)) -> MassProperties:

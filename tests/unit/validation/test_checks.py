@@ -16,10 +16,9 @@ from meshprops import mesh_from_arrays, mesh_from_triangles
 from meshprops.geometry import shapes
 from meshprops.io import writers
 from meshprops.physics.moments import integrate_chunks
-from meshprops.validation import checks as validation_checks
 from meshprops.validation.checks import validate
-from meshprops.validation.solid import SolidOptions, check_mesh, resolve_solid
 from meshprops.validation.findings import ERROR, WARNING
+from meshprops.validation.solid import SolidOptions, check_mesh, resolve_solid
 
 CASES = catalogue.cases()
 

@@ -9,7 +9,12 @@ import pytest
 from meshprops.errors import InputValueError, MeshpropsError
 from meshprops.materials import MATERIALS
 from meshprops.physics.mass import check_density
-from meshprops.validation.density import PLAUSIBLE_DENSITY, SLIP_UNITS, assess_density, density_findings
+from meshprops.validation.density import (
+    PLAUSIBLE_DENSITY,
+    SLIP_UNITS,
+    assess_density,
+    density_findings,
+)
 
 
 def test_every_table_material_is_plausible():

@@ -10,7 +10,14 @@ import pytest
 
 from meshprops.geometry import shapes
 from meshprops.io import mesh_from_arrays, mesh_from_triangles
-from meshprops.validation.findings import ERROR, WARNING, WHERE_LIMIT, Finding, ValidationReport, where
+from meshprops.validation.findings import (
+    ERROR,
+    WARNING,
+    WHERE_LIMIT,
+    Finding,
+    ValidationReport,
+    where,
+)
 
 
 def _report(*findings):
