@@ -12,7 +12,7 @@ import typer
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..measure.options import MeasureOptions
 from ..units import DEFAULT_LENGTH_UNIT
-from .app import app, one_line_errors, say, write_report
+from .app import Command, app, one_line_errors, say, write_report
 from .options import length_unit, parse_vector
 
 
@@ -30,10 +30,10 @@ def parse_pair(text: str | None, name: str) -> tuple[float, float] | None:
     return values
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def balance(
-    body: Annotated[Path, typer.Argument(help="A mesh file (STL, OBJ, PLY) or an assembly manifest (.toml).", show_default=False)],
+    body: Annotated[Path, typer.Argument(help="A mesh file (STL, OBJ, PLY) or an assembly manifest (.toml).", show_default=False, metavar="BODY")],
     axis_point: Annotated[str, typer.Option("--axis-point", help="A point X,Y,Z of the shaft axis, in the input length unit (--units, or the manifest's).", show_default=False)],
     axis_direction: Annotated[str, typer.Option("--axis-direction", help="Shaft direction X,Y,Z (normalized); the rotor spins right-handed about it.", show_default=False)],
     rpm: Annotated[float, typer.Option("--rpm", help="Service speed in rev/min (> 0).", show_default=False)],

@@ -10,14 +10,14 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_OK, InputValueError
-from .app import app, one_line_errors, say
+from .app import Command, app, one_line_errors, say
 from .batching import Jobs
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def baseline(
-    paths: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files, folders or manifests to record (default: every mesh under the current directory).", show_default=False)] = None,
+    paths: Annotated[Optional[list[Path]], typer.Argument(help="Mesh files, folders or manifests to record (default: every mesh under the current directory).", show_default=False, metavar="PATHS...")] = None,
     units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default: the configuration's, else mm).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 for every file (default: the configuration's material or density).")] = None,
     jobs: Jobs = None,

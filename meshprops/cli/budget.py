@@ -9,10 +9,10 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_USAGE
-from .app import app, one_line_errors, say, write_report
+from .app import Command, app, one_line_errors, say, write_report
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def budget(
     json_output: Annotated[bool, typer.Option("--json", help="Print one JSON document (kg) instead of a table.")] = False,

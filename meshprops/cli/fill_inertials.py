@@ -14,7 +14,7 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError, ModelFileError
-from .app import app, one_line_errors, say, write_report
+from .app import Command, app, one_line_errors, say, write_report
 
 
 def _same_file(first: Path, second: Path) -> bool:
@@ -23,10 +23,10 @@ def _same_file(first: Path, second: Path) -> bool:
     return first.resolve() == second.resolve()
 
 
-@app.command("fill-inertials")
+@app.command("fill-inertials", cls=Command)
 @one_line_errors
 def fill_inertials(
-    model: Annotated[Path, typer.Argument(help="The model: URDF, SDFormat or MJCF (told by its root element).", show_default=False)],
+    model: Annotated[Path, typer.Argument(help="The model: URDF, SDFormat or MJCF (told by its root element).", show_default=False, metavar="MODEL")],
     output: Annotated[Path, typer.Option("--output", "-o", help="Write the filled model here (never over MODEL).", show_default=False)],
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 for links the map does not name (default 1000, said as assumed).")] = None,
     material: Annotated[Optional[str], typer.Option("--material", help="A material of `meshprops materials` for links the map does not name.")] = None,

@@ -8,10 +8,10 @@ from typing import Annotated
 
 import typer
 
-from .app import app, one_line_errors
+from .app import Command, app, one_line_errors
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def materials(
     json_output: Annotated[bool, typer.Option("--json", help="Print the table as one JSON document.")] = False,

@@ -10,14 +10,14 @@ import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..units import DEFAULT_LENGTH_UNIT
-from .app import app, one_line_errors, say
+from .app import Command, app, one_line_errors, say
 from .options import length_unit
 
 
-@app.command()
+@app.command(cls=Command)
 @one_line_errors
 def report(
-    source: Annotated[Path, typer.Argument(help="A mesh file (STL, OBJ, PLY) or an assembly manifest (.toml).", show_default=False)],
+    source: Annotated[Path, typer.Argument(help="A mesh file (STL, OBJ, PLY) or an assembly manifest (.toml).", show_default=False, metavar="INPUT")],
     output: Annotated[Path, typer.Option("--output", "-o", help="Write the HTML report to this file (atomically).", show_default=False)],
     units: Annotated[Optional[str], typer.Option("--units", "-u", help="Length unit of the mesh coordinates: m, cm, mm, in, ft (default mm; a manifest sets its own).")] = None,
     density: Annotated[Optional[float], typer.Option("--density", "-d", help="Density in kg/m^3 (default 1000, flagged as assumed).")] = None,

@@ -120,3 +120,17 @@ def test_write_report_goes_to_stdout_or_to_the_file(capsys, tmp_path):
     write_report("to the file\n", target)
     assert target.read_text(encoding="utf-8") == "to the file\n" and capsys.readouterr().out == ""
     assert os.listdir(tmp_path) == ["report.txt"]
+
+
+def test_every_command_usage_line_names_its_arguments_plainly():
+    """No ``{files}``-style usage: every command uses the app's Command class and a metavar."""
+    import typer
+    from typer.testing import CliRunner
+
+    from meshprops.cli import app
+
+    group = typer.main.get_command(app)
+    for name in group.list_commands(None):
+        usage = CliRunner().invoke(app, [name, "--help"]).stdout.splitlines()[0]
+        assert usage.startswith(f"Usage: meshprops {name} [OPTIONS]"), usage
+        assert "{" not in usage and all(word == word.upper() for word in usage.split()[3:] if word != "[OPTIONS]"), usage
