@@ -356,6 +356,39 @@ def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin,
     return first, second, kind
 
 
+@njit(cache=True)
+def grid_pairs_serial(member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims,
+                      tolerance, skip_shared):  # fmt: skip
+    """:func:`grid_pairs` in one thread, the same pairs in the same order, for small meshes.
+
+    Starting numba's parallel threads costs ~10 ms a call on a busy 2-core machine (more
+    than a part of a few thousand faces needs in all), and in a pool of worker processes
+    the threads only compete with the other workers.
+    """
+    cells = starts.shape[0] - 1
+    counts = np.zeros(cells + 1, dtype=np.int64)
+    dummy = np.empty(0, dtype=np.int64)
+    dummy_kind = np.empty(0, dtype=np.int8)
+    for c in range(cells):
+        if starts[c + 1] - starts[c] > 1:
+            sort_bucket(c, starts, member_keys, members, low)
+            counts[c + 1] = _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin,
+                                        cell_size, dims, tolerance, skip_shared, dummy, dummy, dummy_kind, 0,
+                                        False)  # fmt: skip
+    for c in range(cells):
+        counts[c + 1] += counts[c]
+    total = counts[cells]
+    first = np.empty(total, dtype=np.int64)
+    second = np.empty(total, dtype=np.int64)
+    kind = np.empty(total, dtype=np.int8)
+    if total > 0:
+        for c in range(cells):
+            if counts[c + 1] > counts[c]:
+                _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size,
+                            dims, tolerance, skip_shared, first, second, kind, counts[c], True)  # fmt: skip
+    return first, second, kind
+
+
 @njit(cache=True, parallel=True)
 def face_sides_winding(corners, queries, axes):
     """Winding number of the closed surface just outside each query face.

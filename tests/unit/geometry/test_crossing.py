@@ -7,7 +7,8 @@ import numpy as np
 import pytest
 from paths import TESTS
 
-from meshprops.geometry import shapes
+from meshprops.batch.backends import COMPILED_CROSSINGS_FROM_ITEMS, run_batch
+from meshprops.geometry import crossing, shapes
 from meshprops.geometry.crossing import crossing_volume_bound, find_crossings
 from meshprops.geometry.intersections import self_intersection_pairs
 from meshprops.geometry.welding import weld_exact
@@ -52,7 +53,7 @@ def test_agrees_with_the_rtree_check_on_random_triangles(seed):
     found = find_crossings(*_welded(corners, face_vertices), force_compiled=True)
     assert reference.shape[0] > 0  # the test means something only if there are crossings
     np.testing.assert_array_equal(found.pairs, reference)
-    small = find_crossings(*_welded(corners, face_vertices))  # below COMPILED_FROM_FACES: the rtree path
+    small = find_crossings(*_welded(corners, face_vertices), force_rtree=True)  # the rtree path
     assert not small.coplanar_checked
     np.testing.assert_array_equal(small.pairs, reference)
 
@@ -130,3 +131,27 @@ def test_volume_bound_of_a_small_fold_is_small():
     bound = crossing_volume_bound(vertices, faces, found.pairs)
     assert bound.bounded
     assert 0 < bound.volume_bound < 1e-6 * 2 * np.pi**2 * 2.0 * 0.5**2
+
+
+def test_one_thread_and_all_cores_find_the_same_pairs():
+    # Random soup as above (reference: the rtree check); the serial kernel answers below PARALLEL_FROM_FACES.
+    rng = np.random.default_rng(11)
+    corners = np.round((rng.uniform(0, 10, size=(400, 1, 3)) + rng.normal(scale=0.8, size=(400, 3, 3))) * 2) / 2
+    reference, face_vertices = _reference_pairs(corners)
+    vertices, faces = _welded(corners, face_vertices)
+    serial = find_crossings(vertices, faces, force_compiled=True, _parallel=False)
+    parallel = find_crossings(vertices, faces, force_compiled=True, _parallel=True)
+    assert reference.shape[0] > 0
+    np.testing.assert_array_equal(serial.pairs, reference)
+    np.testing.assert_array_equal(parallel.pairs, reference)
+    np.testing.assert_array_equal(serial.coplanar_pairs, parallel.coplanar_pairs)
+
+
+def test_a_batch_worker_uses_the_compiled_path_for_small_parts(monkeypatch):
+    monkeypatch.setitem(crossing._policy, "every_size", False)
+    run_batch(len, [[0]] * (COMPILED_CROSSINGS_FROM_ITEMS - 1))  # a short batch: as a single file
+    assert not crossing._policy["every_size"]
+    run_batch(len, [[0]] * COMPILED_CROSSINGS_FROM_ITEMS)  # a batch this long switches the process over
+    assert crossing._policy["every_size"]
+    vertices, faces = shapes.box()
+    assert find_crossings(vertices, faces).coplanar_checked  # the compiled path, although only 12 faces
