@@ -277,12 +277,21 @@ def duplicate_face_groups(topology: Topology) -> tuple[np.ndarray, np.ndarray, n
     faces = topology.face_vertices.astype(np.int64)
     distinct = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 2] != faces[:, 0])
     candidates = np.flatnonzero(distinct)
-    sorted_vertices = np.sort(faces[candidates], axis=1)
     bound = np.int64(topology.id_bound)
     if topology.id_bound < 2**21:
-        keys = (sorted_vertices[:, 0] * bound + sorted_vertices[:, 1]) * bound + sorted_vertices[:, 2]
+        first, second, third = (faces[candidates, k] for k in range(3))
+        least = np.minimum(np.minimum(first, second), third)  # the row sorted, element-wise (cheaper)
+        most = np.maximum(np.maximum(first, second), third)
+        keys = (least * bound + (first + second + third - least - most)) * bound + most
+        del first, second, third, least, most
+        ordered = np.sort(keys)  # a plain sort is ~5x cheaper than unique's argsort; most meshes stop here
+        if not np.any(ordered[1:] == ordered[:-1]):
+            none = np.zeros(0, dtype=np.int64)
+            return none, none, none
+        del ordered
         _, inverse, counts = np.unique(keys, return_inverse=True, return_counts=True)
     else:
+        sorted_vertices = np.sort(faces[candidates], axis=1)
         _, inverse, counts = np.unique(sorted_vertices, axis=0, return_inverse=True, return_counts=True)
     inverse = inverse.reshape(-1)
     repeated = counts[inverse] > 1
