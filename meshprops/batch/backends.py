@@ -119,6 +119,8 @@ class SerialBackend:
     worker_count = 1
 
     def run(self, task: Callable, items: Sequence, *, prepare: Callable = _identity) -> Iterator[TaskOutcome]:
+        if len(items) >= COMPILED_CROSSINGS_FROM_ITEMS:
+            use_compiled_at_every_size()  # as a worker does for a long batch (see run_batch)
         for index, item in enumerate(items):
             ((value, error),) = run_batch(task, [prepare(item)])
             yield TaskOutcome(index, value, error)
