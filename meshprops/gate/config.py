@@ -75,7 +75,6 @@ Errors name the file, the dotted key (0-based indices, as ``rule[1].expected_mas
 
 from __future__ import annotations
 
-import math
 import os
 import re
 import tomllib
@@ -86,8 +85,14 @@ import numpy as np
 
 from ..errors import ConfigError, InputValueError
 from ..materials import Material, find_material, user_material
-from ..measure.manifest import dotted_key, find_key_line, kind_of, read_toml
-from ..units import LENGTH_UNITS, metres_per
+from ..measure.manifest import (
+    ManifestReader,
+    dotted_key,
+    find_key_line,
+    kind_of,
+    read_toml,
+)
+from ..units import metres_per
 from .baseline import DEFAULT_TOLERANCES, Tolerances
 from .budget import (
     DEFAULT_GROWTH_ALLOWANCE,
@@ -581,12 +586,16 @@ def _budget(reader, table, root) -> BudgetSpec:
 # ------------------------------------------------------------------------------ reading values with key and line
 
 
-class _Reader:
-    """Check values of parsed TOML, raising :class:`ConfigError` with the dotted key and its line."""
+class _Reader(ManifestReader):
+    """Check values of parsed TOML, raising :class:`ConfigError` with the dotted key and its line.
+
+    The value checks (numbers, vectors, strings, length units by their usual spellings) are the
+    manifest's; only the error, the key prefix of a ``pyproject.toml`` and a few kinds of value
+    are the gate's own.
+    """
 
     def __init__(self, path: str, text: str, prefix: tuple = ()) -> None:
-        self.path = path
-        self.lines = text.splitlines()
+        super().__init__(path, text)
         self.prefix = prefix
 
     def dotted(self, key: tuple) -> str:
@@ -600,25 +609,9 @@ class _Reader:
         if not isinstance(value, dict):
             raise self.fail(key, f"expected a table, got {kind_of(value)}")
 
-    def keys(self, table, allowed: frozenset, key: tuple) -> None:
-        self.table(table, key)
-        for name in table:
-            if name not in allowed:
-                raise self.fail(key + (name,), f"unknown key {name!r}; expected one of {', '.join(sorted(allowed))}")
-
     def array(self, value, key: tuple) -> list:
         if not isinstance(value, list) or not all(isinstance(entry, dict) for entry in value):
             raise self.fail(key, f"expected an array of tables ([[{key[-1]}]]), got {kind_of(value)}")
-        return value
-
-    def number(self, value, key: tuple, *, positive: bool = False, what: str = "a number") -> float:
-        if isinstance(value, bool) or not isinstance(value, (int, float)):
-            raise self.fail(key, f"expected {what}, got {kind_of(value)} {value!r}")
-        value = float(value)
-        if not math.isfinite(value):
-            raise self.fail(key, f"expected {what} (finite), got {value!r}")
-        if positive and value <= 0:
-            raise self.fail(key, f"expected {what} > 0, got {value!r}")
         return value
 
     def fraction(self, value, key: tuple) -> float:
@@ -627,23 +620,7 @@ class _Reader:
             raise self.fail(key, f"expected a growth allowance between 0 and 1 (a fraction: 0.05 is 5 %), got {value!r}")
         return value
 
-    def vector(self, value, key: tuple, *, what: str = "a vector [x, y, z]") -> np.ndarray:
-        if not isinstance(value, list) or len(value) != 3:
-            raise self.fail(key, f"expected {what} of 3 numbers, got {value!r}")
-        return np.array([self.number(v, key, what="numbers") for v in value])
-
-    def string(self, value, key: tuple) -> str:
-        if not isinstance(value, str) or not value.strip():
-            raise self.fail(key, f"expected a non-empty string, got {kind_of(value)} {value!r}")
-        return value
-
     def choice(self, value, key: tuple, choices) -> str:
         if value not in choices:
             raise self.fail(key, f"expected one of {', '.join(map(repr, choices))}, got {value!r}")
-        return value
-
-    def unit(self, value, key: tuple) -> str:
-        value = self.string(value, key)
-        if value not in LENGTH_UNITS:
-            raise self.fail(key, f"unknown length unit {value!r}; expected one of {', '.join(LENGTH_UNITS)}")
         return value
