@@ -185,6 +185,6 @@ def batch_options(request):
 def compiled_crossing_kernels():
     """Compile (once per machine; then loaded from numba's cache) the self-intersection kernels before
     any test, so that no command's output depends on whether this is the first run on a fresh clone."""
-    from meshprops.geometry.crossing import warm_up
+    from meshprops.geometry.warm_up import warm_up
 
     warm_up()

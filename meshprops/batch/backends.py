@@ -35,7 +35,7 @@ from ..errors import (
     MissingExtraError,
     UnsentError,
 )
-from ..geometry.crossing import use_compiled_at_every_size
+from ..geometry.compiled import use_compiled_at_every_size, use_one_thread
 
 #: Largest number of items in one batch (tasks of ~64 small parts take ~0.3 s, so the
 #: ~1 ms (pool) to ~10 ms (cluster) cost of a task stays a few percent).
@@ -184,7 +184,9 @@ class ProcessPoolBackend:
     def _pool(self) -> ProcessPoolExecutor:
         if self._executor is None:
             context = multiprocessing.get_context("fork" if _fork_is_safe() else "spawn")
-            self._executor = ProcessPoolExecutor(max_workers=self.worker_count, mp_context=context)
+            self._executor = ProcessPoolExecutor(
+                max_workers=self.worker_count, mp_context=context, initializer=use_one_thread
+            )
         return self._executor
 
     def run(

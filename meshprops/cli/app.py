@@ -63,7 +63,7 @@ def say(message: str) -> None:
 
 def announce_first_compile() -> None:
     """Have a first compile of the self-intersection kernels announced on stderr when it starts (once, then cached)."""
-    from ..geometry.crossing import on_first_compile
+    from ..geometry.compiled import on_first_compile
 
     on_first_compile(say)
 

@@ -3,12 +3,9 @@
 Which faces of a mesh pass through each other (:func:`find_crossings`), and how
 much that can change the enclosed volume (:func:`crossing_volume_bound`).
 
-The kernels are compiled by numba on first use and cached on disk
-(``cache=True``: beside the kernel module in ``__pycache__``, or in
-``NUMBA_CACHE_DIR`` / the user's cache folder when that is read-only). The first
-compile takes tens of seconds; the command line has it announced
-(:func:`on_first_compile`), and it is never repeated while the cache stands. numba is imported only here, on first use, because its
-import alone costs ~0.4 s.
+The kernels (:mod:`meshprops.geometry.crossing_kernels`) are compiled by numba on first
+use and cached on disk; when they answer, and the notice of their first compile, are
+:mod:`meshprops.geometry.compiled`'s business.
 
 Inputs are welded vertices and faces (never an (F, 3, 3) corner array: at 2M faces
 that alone is 144 MB and a third of a second to build).
@@ -32,25 +29,24 @@ not crossings.
 
 from __future__ import annotations
 
-import os
-import sys
 import time
 from dataclasses import dataclass
 
 import numpy as np
 
+from .compiled import compiled_answers, one_thread
+from .compiled import kernels as compiled_kernels
+
 #: A face is entered in at most about this many grid cells on average (the cell grows until it holds).
 ENTRIES_PER_FACE = 4.0
-#: Below this many faces the rtree path answers (same pairs, tested to agree): loading numba and its
-#: cached kernels costs ~0.6-1 s per process, more than the rtree path's ~20 µs a face up to here.
-#: Once the kernels are loaded in the process (or a batch asked for them, :func:`use_compiled_at_every_size`)
-#: the compiled path answers at every size: ~1 ms instead of ~16 ms for a part of 1,000 faces.
-COMPILED_FROM_FACES = 30_000
+#: The first cell edge over the median face size (see the module docstring).
+CELL_OVER_FACE = 2.0
 #: From this many faces the pair kernel runs on all cores; below, in one thread (its start-up costs
 #: more than the work).
 PARALLEL_FROM_FACES = 20_000
 #: Relative tolerance of the narrow phase (as in the rtree-based check).
 RELATIVE_TOLERANCE = 1e-10
+
 
 @dataclass(frozen=True, slots=True, eq=False)
 class Crossings:
@@ -80,111 +76,23 @@ class Crossings:
         return np.unique(self.pairs)
 
 
-_notice = {"callback": None, "given": False}
-_policy = {"every_size": False}
-
-
-def use_compiled_at_every_size() -> bool:
-    """Have the compiled path answer at every size in this process, if its kernels are cached on disk.
-
-    For a process that checks many files (a batch worker): numba's import is paid once and
-    each small part then costs ~1 ms instead of ~16 ms. With a cold cache nothing changes
-    (a first compile takes tens of seconds). The pairs found are the same on either path
-    (tested). Returns whether the compiled path is now used at every size.
-    """
-    if not _policy["every_size"] and kernel_cache().warm:
-        _policy["every_size"] = True
-    return _policy["every_size"]
-
-
-def _compiled_answers(count: int) -> bool:
-    """Whether the compiled path answers for ``count`` faces (see :data:`COMPILED_FROM_FACES`)."""
-    return (
-        count >= COMPILED_FROM_FACES
-        or _policy["every_size"]
-        or "meshprops.geometry.crossing_kernels" in sys.modules  # already loaded: no import to pay
-    )
-
-
-def on_first_compile(callback) -> None:
-    """Have ``callback(text)`` told, once per process, just before the kernels compile for the first time.
-
-    The command line passes its stderr writer; nothing in this layer prints.
-    """
-    _notice["callback"] = callback
-
-
-def _kernels():
-    """The compiled kernels (numba is imported on first use; a first compile is announced)."""
-    from meshprops.geometry import crossing_kernels as kernels
-
-    if not _notice["given"] and _notice["callback"] is not None:
-        _notice["given"] = True
-        cache = kernel_cache()
-        if not cache.warm:
-            _notice["callback"](
-                "compiling the self-intersection kernels once (about 20-40 s); "
-                f"they are cached in {cache.folder} for later runs"
-            )
-    return kernels
-
-
-def kernel_cache() -> KernelCache:
-    """Whether numba's on-disk cache holds the kernels for their current source, and where it is."""
-    from meshprops.geometry import crossing_kernels as kernels
-
-    warm = _cache_is_warm(kernels.grid_pairs) and _cache_is_warm(kernels.grid_pairs_serial)
-    return KernelCache(warm, _cache_folder(kernels.grid_pairs))
-
-
-@dataclass(frozen=True, slots=True, eq=False)
-class KernelCache:
-    """``warm``: the kernels load from disk; ``folder``: where numba keeps them."""
-
-    warm: bool
-    folder: str
-
-
-def _cache_folder(dispatcher) -> str:
-    try:
-        return str(dispatcher._cache._cache_path)
-    except AttributeError:  # numba's cache internals moved: say where it would usually be
-        return os.environ.get("NUMBA_CACHE_DIR", "__pycache__ beside meshprops/geometry/crossing_kernels.py")
-
-
-def _cache_is_warm(dispatcher) -> bool:
-    """Whether numba's on-disk cache holds this kernel for the current source (best effort)."""
-    try:
-        return bool(dispatcher._cache._cache_file._load_index())
-    except Exception:  # noqa: BLE001 - unknown numba internals: stay quiet rather than guess
-        return True
-
-
-def warm_up() -> None:
-    """Compile (or load from the cache) every kernel on a two-face input."""
-    vertices = np.array([[0.0, 0, 0], [1, 0, 0], [0, 1, 0], [0.2, 0.2, -1], [0.2, 0.2, 1], [1, 1, 0]])
-    faces = np.array([[0, 1, 2], [3, 4, 5]], dtype=np.int64)
-    crossing_volume_bound(vertices, faces, find_crossings(vertices, faces, force_compiled=True).pairs)
-    find_crossings(vertices, faces, force_compiled=True, _parallel=True)
-
-
-def _cell_size(low: np.ndarray, high: np.ndarray, vertices: np.ndarray, kernels) -> tuple[float, np.ndarray, np.ndarray]:
-    """Cell edge, grid origin and per-face entry counts (see the module docstring)."""
+def _cell_size(boxes: np.ndarray, vertices: np.ndarray, entry_total) -> tuple[float, np.ndarray]:
+    """Cell edge and grid origin (see the module docstring); ``boxes`` from the ``face_boxes`` kernel,
+    ``entry_total`` the ``cell_entry_total`` kernel."""
     bottom = np.array([vertices[:, axis].min() for axis in range(3)])
-    step = max(1, low.shape[0] // 65536)  # the median of a sample is as good a start and 10x cheaper
-    extent = (high[::step] - low[::step]).max(axis=1)
+    step = max(1, boxes.shape[0] // 65536)  # the median of a sample is as good a start and 10x cheaper
+    sample = boxes[::step].astype(np.float64)
+    extent = (sample[:, 3:] - sample[:, :3]).max(axis=1)
     span = float(max(vertices[:, axis].max() - bottom[axis] for axis in range(3)))
     positive = extent[extent > 0]
-    size = 2.0 * float(np.median(positive)) if positive.size else max(span, 1.0)
+    size = CELL_OVER_FACE * float(np.median(positive)) if positive.size else max(span, 1.0)
     size = max(size, span * 2.0**-20, 1e-300)  # at most 2^20 cells a side: linear keys stay within int64
     origin = bottom - 0.5 * size
-    budget = ENTRIES_PER_FACE * low.shape[0] + 64
-    while True:
-        counts = kernels.cell_entry_counts(low, high, origin, size)
-        if float(counts.sum()) <= budget:
-            return size, origin, counts
+    budget = ENTRIES_PER_FACE * boxes.shape[0] + 64
+    while entry_total(boxes, origin, size) > budget:
         size *= 1.5
         origin = bottom - 0.5 * size
+    return size, origin
 
 
 def find_crossings(
@@ -210,7 +118,7 @@ def find_crossings(
     include_vertex_neighbours : also test pairs sharing exactly one vertex (two such faces can
         still cross along a segment from that vertex: a fold). Off by default, as in the
         rtree-based check; the volume bound turns it on.
-    force_compiled : use the compiled path below :data:`COMPILED_FROM_FACES` faces too (it alone
+    force_compiled : use the compiled path below :data:`meshprops.geometry.compiled.COMPILED_FROM_FACES` faces too (it alone
         also finds coplanar overlaps)
     force_rtree : use the rtree path whatever the size and whether the kernels are loaded (it
         does not test faces sharing a vertex, so ``include_vertex_neighbours`` overrides this)
@@ -220,39 +128,46 @@ def find_crossings(
     Crossings
     """
     vertices = np.ascontiguousarray(vertices, dtype=np.float64)
-    faces = np.ascontiguousarray(faces, dtype=np.int64)
+    # int32 ids (the weld's own type: no copy) unless the vertex count needs more
+    faces = np.ascontiguousarray(faces, dtype=np.int32 if vertices.shape[0] < 2**31 else np.int64)
     count = faces.shape[0]
     empty = np.zeros((0, 2), dtype=np.int64)
     if count < 2:
         return Crossings(empty, empty, 0.0, 0, 0.0)
     started = time.perf_counter()
-    rtree = force_rtree or not (force_compiled or _compiled_answers(count))
+    rtree = force_rtree or not (force_compiled or compiled_answers(count))
     if rtree and not include_vertex_neighbours:
         from .intersections import crossing_pairs_of
 
         pairs = _sorted_rows(np.sort(crossing_pairs_of(vertices[faces], faces), axis=1))
         return Crossings(pairs, empty, 0.0, 0, time.perf_counter() - started, coplanar_checked=False)
-    kernels = _kernels()
-    low, high = kernels.face_boxes(vertices, faces)
-    size, origin, counts = _cell_size(low, high, vertices, kernels)
-    top = np.floor((vertices.max(axis=0) - origin) / size).astype(np.int64) + 1
-    dims = np.maximum(top, 1)
-    offsets = np.zeros(count + 1, dtype=np.int64)
-    np.cumsum(counts, out=offsets[1:])
-    keys, members = kernels.cell_entries(low, high, origin, size, dims, offsets)
-    entries = int(keys.size)
-    buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 2.0))))
-    starts, member_keys, members = kernels.group_by_bucket(keys, members, buckets)
-    del keys
-    parallel = count >= PARALLEL_FROM_FACES if _parallel is None else _parallel
-    first, second, kind = (kernels.grid_pairs if parallel else kernels.grid_pairs_serial)(
-        member_keys, starts, members, vertices, faces, low, high, origin, size, dims, relative_tolerance,
+    kernels = compiled_kernels("crossing_kernels")
+    parallel = (count >= PARALLEL_FROM_FACES and not one_thread()) if _parallel is None else _parallel
+    kernel = (lambda name: getattr(kernels, name)) if parallel else kernels.serial
+    boxes = kernel("face_boxes")(vertices, faces)
+    size, origin = _cell_size(boxes, vertices, kernel("cell_entry_total"))
+    top = np.array([float(boxes[:, 3 + axis].max()) for axis in range(3)])  # boxes are rounded outwards
+    dims = np.maximum(np.floor((top - origin) / size).astype(np.int64) + 2, 1)
+    entries = int(kernel("cell_entry_total")(boxes, origin, size))
+    # About a bucket per eight entries: a cell holds ~10-30 entries on a surface, so few buckets hold
+    # two cells, and the bucket starts stay small enough to be counted in cache.
+    buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 8.0))))
+    parts = _thread_count() if parallel else 1
+    starts, member_keys, members, member_low_x = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts)
+    first, second, kind = kernel("grid_pairs")(
+        member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, size, dims, relative_tolerance,
         2 if include_vertex_neighbours else 1,
     )  # fmt: skip
     pairs = np.column_stack([first, second])
     crossing = _sorted_rows(pairs[kind == kernels.CROSSING])
     coplanar = _sorted_rows(pairs[kind == kernels.COPLANAR_OVERLAP])
     return Crossings(crossing, coplanar, size, entries, time.perf_counter() - started)
+
+
+def _thread_count() -> int:
+    import numba
+
+    return int(numba.get_num_threads())
 
 
 def _sorted_rows(pairs: np.ndarray) -> np.ndarray:
@@ -333,7 +248,7 @@ def crossing_volume_bound(vertices: np.ndarray, faces: np.ndarray, pairs: np.nda
     pairs = np.asarray(pairs, dtype=np.int64).reshape(-1, 2)
     if pairs.shape[0] == 0:
         return CrossingBound(True, 0.0, 0, 0.0, 0)
-    kernels = _kernels()
+    kernels = compiled_kernels("crossing_kernels")
     # faces sharing a vertex can cross too (a fold): they bound anomalous regions as well
     pairs = np.concatenate([pairs, find_crossings(vertices, faces, include_vertex_neighbours=True).pairs])
     corners = np.ascontiguousarray(vertices[faces])
@@ -354,7 +269,8 @@ def crossing_volume_bound(vertices: np.ndarray, faces: np.ndarray, pairs: np.nda
             break
         tested[candidates] = True
         axes = np.abs(normals[candidates]).argmax(axis=1).astype(np.int64)
-        outside = kernels.face_sides_winding(corners, candidates.astype(np.int64), axes)
+        winding = kernels.serial("face_sides_winding") if one_thread() else kernels.face_sides_winding
+        outside = winding(corners, candidates.astype(np.int64), axes)
         bad = candidates[outside != 0]
         anomalous[bad] = True
         frontier = bad

@@ -10,8 +10,41 @@ length unit; the tolerances are relative, so the unit does not matter.
 
 from __future__ import annotations
 
+import types
+
 import numpy as np
 from numba import njit, prange
+
+#: The kernels called from Python (their on-disk cache tells whether a first compile is due).
+ENTRY_POINTS = ("face_boxes", "cell_entry_total", "bucket_entries", "grid_pairs", "face_sides_winding")
+
+_SERIAL = {}
+
+
+def _parallel_and_serial(function):
+    """Compile ``function`` on all cores, and keep a one-thread twin in :func:`serial`.
+
+    For small meshes the twin answers: starting numba's threads costs more than the work, and
+    a process that has started them must not fork (a worker pool then spawns instead). The
+    twin is the same code under its own name, so numba caches the two apart.
+    """
+    twin = types.FunctionType(function.__code__, function.__globals__, function.__name__ + "_serial",
+                              function.__defaults__, function.__closure__)  # fmt: skip
+    twin.__qualname__ = function.__qualname__ + "_serial"
+    twin.__doc__ = function.__doc__
+    _SERIAL[function.__name__] = njit(cache=True)(twin)
+    return njit(cache=True, parallel=True)(function)
+
+
+def serial(name: str):
+    """The one-thread twin of the parallel kernel ``name`` (same answers, same order)."""
+    return _SERIAL[name]
+
+
+def dispatchers() -> list:
+    """Every kernel called from Python, one-thread twins included (for the cache check)."""
+    return [globals()[name] for name in ENTRY_POINTS] + list(_SERIAL.values())
+
 
 #: Result codes of :func:`pair_relation`.
 NONE = 0
@@ -169,57 +202,55 @@ def _plane_interval(t, distance, line):
     return low, high
 
 
-@njit(cache=True)
+@njit(cache=True, inline="always")
+def _down32(x):
+    """The largest float32 not above ``x``."""
+    y = np.float32(x)
+    return np.nextafter(y, np.float32(-np.inf)) if y > x else y
+
+
+@njit(cache=True, inline="always")
+def _up32(x):
+    """The smallest float32 not below ``x``."""
+    y = np.float32(x)
+    return np.nextafter(y, np.float32(np.inf)) if y < x else y
+
+
+@_parallel_and_serial
 def face_boxes(vertices, faces):
-    """(F, 3) lowest and highest corner coordinates of each face."""
+    """(F, 6) float32 box of each face: lowest x, y, z then highest x, y, z, rounded outwards.
+
+    float32 halves the memory the pair loop reads; rounding outwards keeps every pair of
+    boxes that overlap in float64 overlapping (the narrow phase is exact in float64).
+    """
     count = faces.shape[0]
-    low = np.empty((count, 3))
-    high = np.empty((count, 3))
+    boxes = np.empty((count, 6), dtype=np.float32)
     for face in prange(count):
         for axis in range(3):
             p = vertices[faces[face, 0], axis]
             q = vertices[faces[face, 1], axis]
             r = vertices[faces[face, 2], axis]
-            low[face, axis] = min(p, q, r)
-            high[face, axis] = max(p, q, r)
-    return low, high
+            boxes[face, axis] = _down32(min(p, q, r))
+            boxes[face, 3 + axis] = _up32(max(p, q, r))
+    return boxes
 
 
-@njit(cache=True)
-def cell_entry_counts(low, high, origin, cell_size):
-    """(F,) int64 number of grid cells each face's bounding box overlaps."""
-    count = low.shape[0]
-    out = np.empty(count, dtype=np.int64)
-    for face in prange(count):
-        total = 1
+@njit(cache=True, inline="always")
+def _cell_of(value, origin, cell_size):
+    return np.int64(np.floor((np.float64(value) - origin) / cell_size))
+
+
+@_parallel_and_serial
+def cell_entry_total(boxes, origin, cell_size):
+    """Number of (face, cell) entries: grid cells overlapped by each face's box, summed."""
+    total = 0
+    for face in prange(boxes.shape[0]):
+        cells = 1
         for axis in range(3):
-            first = np.int64(np.floor((low[face, axis] - origin[axis]) / cell_size))
-            last = np.int64(np.floor((high[face, axis] - origin[axis]) / cell_size))
-            total *= last - first + 1
-        out[face] = total
-    return out
-
-
-@njit(cache=True)
-def cell_entries(low, high, origin, cell_size, dims, offsets):
-    """Linear cell key of every (face, cell) entry; ``offsets`` (F + 1,) from the counts."""
-    count = low.shape[0]
-    keys = np.empty(offsets[count], dtype=np.int64)
-    faces = np.empty(offsets[count], dtype=np.int32)
-    for face in prange(count):
-        lo = np.empty(3, dtype=np.int64)
-        hi = np.empty(3, dtype=np.int64)
-        for axis in range(3):
-            lo[axis] = np.int64(np.floor((low[face, axis] - origin[axis]) / cell_size))
-            hi[axis] = np.int64(np.floor((high[face, axis] - origin[axis]) / cell_size))
-        position = offsets[face]
-        for x in range(lo[0], hi[0] + 1):
-            for y in range(lo[1], hi[1] + 1):
-                for z in range(lo[2], hi[2] + 1):
-                    keys[position] = (x * dims[1] + y) * dims[2] + z
-                    faces[position] = face
-                    position += 1
-    return keys, faces
+            cells *= (_cell_of(boxes[face, 3 + axis], origin[axis], cell_size)
+                      - _cell_of(boxes[face, axis], origin[axis], cell_size) + 1)  # fmt: skip
+        total += cells
+    return total
 
 
 @njit(cache=True, inline="always")
@@ -227,91 +258,141 @@ def _bucket(key, mask):
     return np.int64((np.uint64(key) * np.uint64(0x9E3779B97F4A7C15)) >> np.uint64(29)) & mask
 
 
-@njit(cache=True)
-def group_by_bucket(keys, faces, bucket_count):
-    """Counting sort of the (cell key, face) entries into ``bucket_count`` hash buckets (a power of two).
+@njit(cache=True, inline="always")
+def _cell_range(boxes, face, origin, cell_size):
+    return (_cell_of(boxes[face, 0], origin[0], cell_size), _cell_of(boxes[face, 1], origin[1], cell_size),
+            _cell_of(boxes[face, 2], origin[2], cell_size), _cell_of(boxes[face, 3], origin[0], cell_size),
+            _cell_of(boxes[face, 4], origin[1], cell_size), _cell_of(boxes[face, 5], origin[2], cell_size))  # fmt: skip
 
-    A bucket may hold several cells whose keys collide; the pair loop compares
+
+@_parallel_and_serial
+def bucket_entries(boxes, origin, cell_size, dims, bucket_count, parts):
+    """Every (face, cell) entry, grouped by a hash of its cell into ``bucket_count`` buckets (a power of two).
+
+    Two passes over the faces (count, then place), each enumerating the cells of the
+    face's box. ``parts`` threads split the buckets between them (each reads every face
+    and places the entries of its own range of buckets, so no two threads write one
+    place). A bucket may hold several cells whose keys collide; the pair loop compares
     keys, so collisions cost a few extra comparisons and never a wrong pair.
-    Returns ``starts`` (B + 1,) int64, ``member_keys`` (E,) int64 and
-    ``member_faces`` (E,) int32: bucket ``b`` holds entries ``starts[b]:starts[b + 1]``.
+    Returns ``starts`` (B + 1,) int64, ``member_keys`` (E,) int64 linear cell keys,
+    ``member_faces`` (E,) int32 and ``member_low_x`` (E,) float32, the lowest x of each
+    entry's face (kept beside the entry so that sorting and sweeping a cell read memory
+    in order): bucket ``b`` holds entries ``starts[b]:starts[b + 1]``.
     """
-    entries = keys.shape[0]
+    count = boxes.shape[0]
     mask = bucket_count - 1
+    share = (bucket_count + parts - 1) // parts
     starts = np.zeros(bucket_count + 1, dtype=np.int64)
-    for e in range(entries):
-        starts[_bucket(keys[e], mask) + 1] += 1
+    for part in prange(parts):
+        first = part * share
+        last = min(bucket_count, first + share)
+        for face in range(count):
+            x0, y0, z0, x1, y1, z1 = _cell_range(boxes, face, origin, cell_size)
+            for x in range(x0, x1 + 1):
+                for y in range(y0, y1 + 1):
+                    for z in range(z0, z1 + 1):
+                        b = _bucket((x * dims[1] + y) * dims[2] + z, mask)
+                        if first <= b < last:
+                            starts[b + 1] += 1
     for b in range(bucket_count):
         starts[b + 1] += starts[b]
+    entries = starts[bucket_count]
     fill = starts[:bucket_count].copy()
     member_keys = np.empty(entries, dtype=np.int64)
     member_faces = np.empty(entries, dtype=np.int32)
-    for e in range(entries):
-        b = _bucket(keys[e], mask)
-        member_keys[fill[b]] = keys[e]
-        member_faces[fill[b]] = faces[e]
-        fill[b] += 1
-    return starts, member_keys, member_faces
+    member_low_x = np.empty(entries, dtype=np.float32)
+    for part in prange(parts):
+        first = part * share
+        last = min(bucket_count, first + share)
+        for face in range(count):
+            x0, y0, z0, x1, y1, z1 = _cell_range(boxes, face, origin, cell_size)
+            for x in range(x0, x1 + 1):
+                for y in range(y0, y1 + 1):
+                    for z in range(z0, z1 + 1):
+                        key = (x * dims[1] + y) * dims[2] + z
+                        b = _bucket(key, mask)
+                        if first <= b < last:
+                            member_keys[fill[b]] = key
+                            member_faces[fill[b]] = face
+                            member_low_x[fill[b]] = boxes[face, 0]
+                            fill[b] += 1
+    return starts, member_keys, member_faces, member_low_x
 
 
 @njit(cache=True)
-def sort_bucket(b, starts, member_keys, member_faces, low):
+def sort_bucket(b, starts, member_keys, member_faces, member_low_x):
     """Sort bucket ``b`` by (cell key, lowest x of the face's box), in place (insertion sort: buckets are small).
 
     The pair loop then sweeps along x within a cell and stops at the first face that
     starts beyond the current one's end.
     """
-    if True:
-        begin = starts[b]
-        end = starts[b + 1]
-        for p in range(begin + 1, end):
-            key = member_keys[p]
-            face = member_faces[p]
-            x = low[face, 0]
-            q = p - 1
-            while q >= begin and (member_keys[q] > key or (member_keys[q] == key and low[member_faces[q], 0] > x)):
-                member_keys[q + 1] = member_keys[q]
-                member_faces[q + 1] = member_faces[q]
-                q -= 1
-            member_keys[q + 1] = key
-            member_faces[q + 1] = face
+    begin = starts[b]
+    end = starts[b + 1]
+    for p in range(begin + 1, end):
+        key = member_keys[p]
+        face = member_faces[p]
+        x = member_low_x[p]
+        q = p - 1
+        while q >= begin and (member_keys[q] > key or (member_keys[q] == key and member_low_x[q] > x)):
+            member_keys[q + 1] = member_keys[q]
+            member_faces[q + 1] = member_faces[q]
+            member_low_x[q + 1] = member_low_x[q]
+            q -= 1
+        member_keys[q + 1] = key
+        member_faces[q + 1] = face
+        member_low_x[q + 1] = x
 
 
 @njit(cache=True)
-def _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims,
+def _cell_pairs(c, member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, cell_size, dims,
                 tolerance, skip_shared, out_first, out_second, out_kind, position, write):  # fmt: skip
+    """Test the pairs of bucket ``c`` (one or, after a hash collision, a few cells).
+
+    The members' boxes, lowest cells and vertex ids are gathered first into small local
+    arrays, so that the pair loop reads memory in order (each face is read once per entry,
+    not once per pair).
+    """
     found = 0
     begin = starts[c]
     end = starts[c + 1]
-    for p in range(begin, end):
-        i = members[p]
-        key = member_keys[p]
+    n = end - begin
+    box = np.empty((n, 6), dtype=np.float32)
+    lowest = np.empty((n, 3), dtype=np.int64)
+    corners = np.empty((n, 3), dtype=np.int64)
+    for t in range(n):
+        f = members[begin + t]
+        for axis in range(6):
+            box[t, axis] = boxes[f, axis]
+        for axis in range(3):
+            lowest[t, axis] = _cell_of(boxes[f, axis], origin[axis], cell_size)
+            corners[t, axis] = faces[f, axis]
+    for p in range(n):
+        key = member_keys[begin + p]
         cz = key % dims[2]
         cy = (key // dims[2]) % dims[1]
         cx = key // (dims[2] * dims[1])
-        for q in range(p + 1, end):
-            if member_keys[q] != key:
+        for q in range(p + 1, n):
+            if member_keys[begin + q] != key:
                 break  # sorted by key: the cell's entries end here
-            j = members[q]
-            if low[j, 0] > high[i, 0]:
-                break  # sorted by low x within the cell: no later face reaches back to face i
-            # bounding boxes must overlap
-            if (low[i, 0] > high[j, 0] or low[j, 0] > high[i, 0] or low[i, 1] > high[j, 1]
-                    or low[j, 1] > high[i, 1] or low[i, 2] > high[j, 2] or low[j, 2] > high[i, 2]):  # fmt: skip
+            if member_low_x[begin + q] > box[p, 3]:
+                break  # sorted by low x within the cell: no later face reaches back to face p
+            # bounding boxes must overlap (in x they do: box[q, 0] lies in [box[p, 0], box[p, 3]])
+            if box[p, 1] > box[q, 4] or box[q, 1] > box[p, 4] or box[p, 2] > box[q, 5] or box[q, 2] > box[p, 5]:
                 continue
             # test each pair once: in the cell holding the low corner of the two boxes' overlap
-            ox = np.int64(np.floor((max(low[i, 0], low[j, 0]) - origin[0]) / cell_size))
-            oy = np.int64(np.floor((max(low[i, 1], low[j, 1]) - origin[1]) / cell_size))
-            oz = np.int64(np.floor((max(low[i, 2], low[j, 2]) - origin[2]) / cell_size))
-            if ox != cx or oy != cy or oz != cz:
+            # (floor is monotonic, so the overlap's lowest cell is the larger of the two lowest cells)
+            if (max(lowest[p, 0], lowest[q, 0]) != cx or max(lowest[p, 1], lowest[q, 1]) != cy
+                    or max(lowest[p, 2], lowest[q, 2]) != cz):  # fmt: skip
                 continue
             shared = 0
             for s in range(3):
                 for t in range(3):
-                    if faces[i, s] == faces[j, t]:
+                    if corners[p, s] == corners[q, t]:
                         shared += 1
             if shared >= skip_shared:
                 continue
+            i = members[begin + p]
+            j = members[begin + q]
             kind = pair_relation(vertices, faces, i, j, tolerance)
             if kind != NONE:
                 if write:
@@ -322,8 +403,8 @@ def _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, ori
     return found
 
 
-@njit(cache=True, parallel=True)
-def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims, tolerance,
+@_parallel_and_serial
+def grid_pairs(member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, cell_size, dims, tolerance,
                skip_shared):  # fmt: skip
     """Every pair of faces that cross (kind 1) or overlap coplanar (kind 2), each once.
 
@@ -338,8 +419,8 @@ def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin,
     dummy_kind = np.empty(0, dtype=np.int8)
     for c in prange(cells):
         if starts[c + 1] - starts[c] > 1:
-            sort_bucket(c, starts, member_keys, members, low)
-            counts[c + 1] = _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin,
+            sort_bucket(c, starts, member_keys, members, member_low_x)
+            counts[c + 1] = _cell_pairs(c, member_keys, starts, members, member_low_x, vertices, faces, boxes, origin,
                                         cell_size, dims, tolerance, skip_shared, dummy, dummy, dummy_kind, 0,
                                         False)  # fmt: skip
     for c in range(cells):
@@ -351,45 +432,12 @@ def grid_pairs(member_keys, starts, members, vertices, faces, low, high, origin,
     if total > 0:
         for c in prange(cells):
             if counts[c + 1] > counts[c]:
-                _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size,
+                _cell_pairs(c, member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, cell_size,
                             dims, tolerance, skip_shared, first, second, kind, counts[c], True)  # fmt: skip
     return first, second, kind
 
 
-@njit(cache=True)
-def grid_pairs_serial(member_keys, starts, members, vertices, faces, low, high, origin, cell_size, dims,
-                      tolerance, skip_shared):  # fmt: skip
-    """:func:`grid_pairs` in one thread, the same pairs in the same order, for small meshes.
-
-    Starting numba's parallel threads costs ~10 ms a call on a busy 2-core machine (more
-    than a part of a few thousand faces needs in all), and in a pool of worker processes
-    the threads only compete with the other workers.
-    """
-    cells = starts.shape[0] - 1
-    counts = np.zeros(cells + 1, dtype=np.int64)
-    dummy = np.empty(0, dtype=np.int64)
-    dummy_kind = np.empty(0, dtype=np.int8)
-    for c in range(cells):
-        if starts[c + 1] - starts[c] > 1:
-            sort_bucket(c, starts, member_keys, members, low)
-            counts[c + 1] = _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin,
-                                        cell_size, dims, tolerance, skip_shared, dummy, dummy, dummy_kind, 0,
-                                        False)  # fmt: skip
-    for c in range(cells):
-        counts[c + 1] += counts[c]
-    total = counts[cells]
-    first = np.empty(total, dtype=np.int64)
-    second = np.empty(total, dtype=np.int64)
-    kind = np.empty(total, dtype=np.int8)
-    if total > 0:
-        for c in range(cells):
-            if counts[c + 1] > counts[c]:
-                _cell_pairs(c, member_keys, starts, members, vertices, faces, low, high, origin, cell_size,
-                            dims, tolerance, skip_shared, first, second, kind, counts[c], True)  # fmt: skip
-    return first, second, kind
-
-
-@njit(cache=True, parallel=True)
+@_parallel_and_serial
 def face_sides_winding(corners, queries, axes):
     """Winding number of the closed surface just outside each query face.
 

@@ -9,6 +9,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .compiled import compiled_answers, kernels
 from .welding import Topology, index_dtype
 
 
@@ -28,13 +29,17 @@ def _edge_keys(face_vertices: np.ndarray, base: int) -> np.ndarray:
     return keys
 
 
-def is_closed_and_oriented(topology: Topology) -> bool:
+def is_closed_and_oriented(topology: Topology, *, force_compiled: bool = False) -> bool:
     """True when every directed edge occurs exactly once and so does its reverse.
 
     One sort: with the direction in the lowest bit, a closed, consistently
     oriented surface sorts into pairs ``(2k, 2k + 1)`` of the same undirected
-    edge, each undirected edge appearing in exactly one pair.
+    edge, each undirected edge appearing in exactly one pair. Large meshes ask the
+    compiled twin (:func:`meshprops.geometry.mesh_kernels.closed_and_oriented`).
     """
+    faces = topology.face_vertices
+    if force_compiled or compiled_answers(faces.shape[0]):
+        return bool(kernels("mesh_kernels").closed_and_oriented(np.ascontiguousarray(faces), topology.id_bound))
     keys = _edge_keys(topology.face_vertices, topology.id_bound).reshape(-1)
     if keys.size % 2:
         return False
@@ -267,13 +272,20 @@ def collapsed_faces(topology: Topology) -> np.ndarray:
     return np.flatnonzero(collapsed_mask(topology.face_vertices))
 
 
-def duplicate_face_groups(topology: Topology) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def duplicate_face_groups(topology: Topology, *, force_compiled: bool = False) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Faces that use the same three vertices as another face.
 
     Returns ``(faces, group, winding)``, sorted by group: the face indices, a
     group label per face (same vertex set, same group) and +1/-1 for the
-    winding of each face relative to the first face of its group.
+    winding of each face relative to the first face of its group. On large meshes
+    the compiled :func:`meshprops.geometry.mesh_kernels.has_duplicate_faces` answers
+    "none" first (most meshes stop there).
     """
+    none = np.zeros(0, dtype=np.int64)
+    if force_compiled or compiled_answers(topology.face_vertices.shape[0]):
+        compiled = kernels("mesh_kernels")
+        if not compiled.has_duplicate_faces(np.ascontiguousarray(topology.face_vertices), topology.id_bound):
+            return none, none, none
     faces = topology.face_vertices.astype(np.int64)
     distinct = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 2] != faces[:, 0])
     candidates = np.flatnonzero(distinct)
@@ -286,7 +298,6 @@ def duplicate_face_groups(topology: Topology) -> tuple[np.ndarray, np.ndarray, n
         del first, second, third, least, most
         ordered = np.sort(keys)  # a plain sort is ~5x cheaper than unique's argsort; most meshes stop here
         if not np.any(ordered[1:] == ordered[:-1]):
-            none = np.zeros(0, dtype=np.int64)
             return none, none, none
         del ordered
         _, inverse, counts = np.unique(keys, return_inverse=True, return_counts=True)

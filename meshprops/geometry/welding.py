@@ -13,6 +13,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..io import Mesh
+from .compiled import compiled_answers, kernels
 from .faces import BLOCK_FACES, mesh_bounding_box
 
 
@@ -27,11 +28,14 @@ class Topology:
         have nearby ids, which keeps later gathers local)
     vertex_count : number of distinct vertex positions
     id_bound : every id is smaller than this (``vertex_count`` after welding)
+    vertex_positions : (V, 3) coordinates of each vertex id in the file's unit and float type,
+        when the weld kept them (the compiled weld does), else None
     """
 
     face_vertices: np.ndarray
     vertex_count: int
     id_bound: int
+    vertex_positions: np.ndarray | None = None
 
 
 # splitmix64 finalizer multipliers
@@ -259,6 +263,8 @@ def weld_exact(mesh: Mesh) -> Topology:
 
 def weld_with_box(mesh: Mesh) -> tuple[Topology, np.ndarray]:
     """The welded topology and the (2, 3) bounding box (file unit), in one pass over the data."""
+    if compiled_answers(mesh.face_count) and _float_rows(mesh):
+        return _weld_compiled_mesh(mesh)
     if mesh.soup is not None and not mesh.soup.flags.c_contiguous and mesh.soup.dtype in (np.float32, np.float64):
         ids, vertex_count, box = _weld_memory_map(mesh)
         return Topology(ids.reshape(-1, 3), vertex_count, vertex_count), box
@@ -273,3 +279,69 @@ def weld_with_box(mesh: Mesh) -> tuple[Topology, np.ndarray]:
 def mesh_rows(mesh: Mesh) -> np.ndarray:
     """The coordinate rows to weld: (3F, 3) contiguous corners of a soup, or the (V, 3) vertices."""
     return _soup_corners(mesh) if mesh.soup is not None else mesh.vertices
+
+
+# ----------------------------------------------------------------------------- compiled weld
+
+
+def _float_rows(mesh: Mesh) -> bool:
+    data = mesh.soup if mesh.soup is not None else mesh.vertices
+    return data.dtype in (np.float32, np.float64)
+
+
+class _CompiledWeld:
+    """The state of a weld by :func:`meshprops.geometry.mesh_kernels.weld_rows`, fed block by block."""
+
+    def __init__(self, row_count: int, dtype, index_type):
+        self.kernels = kernels("mesh_kernels")
+        self.unsigned = np.uint32 if np.dtype(dtype).itemsize == 4 else np.uint64
+        self.dtype = np.dtype(dtype)
+        self.ids = np.empty(row_count, dtype=index_type)
+        # about one vertex a face on closed meshes (V ~ F / 2 = rows / 6): room for that, grown as needed
+        expected = max(16, row_count // 4)
+        self.table = np.full(1 << int(2 * expected - 1).bit_length(), -1, dtype=np.int32)
+        self.vertex_bits = np.empty((expected, 3), dtype=self.unsigned)
+        self.count = 0
+
+    def add(self, first_row: int, rows: np.ndarray) -> None:
+        """Weld ``rows`` (k, 3) of the float type, -0.0 already made +0.0."""
+        bits = np.ascontiguousarray(rows).view(self.unsigned)
+        self.table, self.vertex_bits, self.count = self.kernels.weld_rows(
+            bits, self.ids, first_row, self.table, self.vertex_bits, self.count
+        )
+
+    def positions(self) -> np.ndarray:
+        """(V, 3) coordinates of each vertex id, in the rows' float type."""
+        return self.vertex_bits[: self.count].view(self.dtype)
+
+
+def weld_compiled(positions: np.ndarray, *, index_type=None) -> Topology:
+    """:func:`weld_positions` by the compiled kernel, as a Topology of faces ``(N / 3, 3)`` of the rows.
+
+    ``positions`` (N, 3) float32/float64, N a multiple of 3 (each three rows a face's corners).
+    Ids are numbered in order of first appearance; rows share an id if and only if their
+    coordinates are equal (-0.0 equal to +0.0).
+    """
+    data = _coordinate_rows(positions)
+    weld = _CompiledWeld(data.shape[0], data.dtype, index_type or index_dtype(data.shape[0]))
+    for start in range(0, data.shape[0], 3 * BLOCK_FACES):
+        weld.add(start, data[start : start + 3 * BLOCK_FACES])
+    return Topology(weld.ids.reshape(-1, 3), weld.count, weld.count, weld.positions())
+
+
+def _weld_compiled_mesh(mesh: Mesh) -> tuple[Topology, np.ndarray]:
+    """The compiled weld of a soup (block by block out of the file) or of a mesh's vertex rows."""
+    if mesh.soup is None:
+        data = _coordinate_rows(mesh.vertices)
+        weld = _CompiledWeld(data.shape[0], data.dtype, index_dtype(data.shape[0]))
+        weld.add(0, data)
+        positions = weld.positions()
+        topology = Topology(weld.ids[mesh.faces], weld.count, weld.count, positions)
+        return topology, mesh_bounding_box(mesh, mesh.vertices)
+    weld = _CompiledWeld(3 * mesh.face_count, mesh.soup.dtype, index_dtype(3 * mesh.face_count))
+    buffer = np.empty((BLOCK_FACES, 3, 3), dtype=mesh.soup.dtype)
+    for start, corners in _soup_corner_blocks(mesh, buffer):
+        weld.add(start, corners)
+    positions = weld.positions()
+    topology = Topology(weld.ids.reshape(-1, 3), weld.count, weld.count, positions)
+    return topology, mesh_bounding_box(mesh, positions)

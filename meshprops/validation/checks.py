@@ -36,6 +36,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ..geometry.compiled import compiled_answers, kernels
 from ..geometry.crossing import Crossings, find_crossings
 from ..geometry.faces import (
     SMALL_BLOCK_FACES,
@@ -173,26 +174,39 @@ def zero_area_faces(mesh: Mesh, topology: Topology, diagonal: float) -> np.ndarr
     A face is degenerate when its height over its longest edge is at most
     ``DEGENERATE_HEIGHT_RELATIVE * diagonal`` plus four units of rounding of its
     largest coordinate (float32 STL slivers come out of CAD slightly off zero).
-    Lengths in the file's unit.
+    Lengths in the file's unit. On large meshes a compiled pass over the welded
+    vertices names the candidates (a superset) and only those are tested here.
     """
-    found = []
     faces = topology.face_vertices
-    resolution = np.finfo(mesh.soup.dtype if mesh.soup is not None else np.float64).eps
+    resolution = float(np.finfo(mesh.soup.dtype if mesh.soup is not None else np.float64).eps)
+    limit = DEGENERATE_HEIGHT_RELATIVE * diagonal
+    if topology.vertex_positions is not None and compiled_answers(mesh.face_count):
+        positions = topology.vertex_positions.astype(np.float64)
+        candidates = kernels("mesh_kernels").thin_face_candidates(
+            positions, np.ascontiguousarray(faces), limit, resolution
+        )
+        if candidates.size == 0:
+            return candidates.astype(np.int64)
+        return candidates[_thin(face_corners(mesh, candidates), limit, resolution)].astype(np.int64)
+    found = []
     for start, corners in face_blocks(mesh, SMALL_BLOCK_FACES):
-        stop = start + corners.shape[0]
-        a, b, c = corners[:, 0], corners[:, 1], corners[:, 2]
-        ab, bc, ca = b - a, c - b, a - c
-        lengths = np.maximum(np.maximum(np.einsum("fi,fi->f", ab, ab), np.einsum("fi,fi->f", bc, bc)), np.einsum("fi,fi->f", ca, ca))
-        normal = np.cross(ab, -ca)  # (b - a) x (c - a)
-        doubled_area = np.sqrt(np.einsum("fi,fi->f", normal, normal))
-        magnitude = corner_extreme(np.maximum, np.abs(corners)).max(axis=1)
-        tolerance = DEGENERATE_HEIGHT_RELATIVE * diagonal + 4.0 * resolution * magnitude
-        # height = doubled area / longest edge <= tolerance, without the division (a zero-length face has height 0)
-        thin = doubled_area <= tolerance * np.sqrt(lengths)
-        block = faces[start:stop]
+        block = faces[start : start + corners.shape[0]]
         distinct = (block[:, 0] != block[:, 1]) & (block[:, 1] != block[:, 2]) & (block[:, 2] != block[:, 0])
-        found.append(np.flatnonzero(distinct & thin) + start)
+        found.append(np.flatnonzero(distinct & _thin(corners, limit, resolution)) + start)
     return np.concatenate(found) if found else np.zeros(0, dtype=np.int64)
+
+
+def _thin(corners: np.ndarray, limit: float, resolution: float) -> np.ndarray:
+    """(k,) whether each face of ``corners`` (k, 3, 3) float64 is no higher than its zero-area tolerance."""
+    a, b, c = corners[:, 0], corners[:, 1], corners[:, 2]
+    ab, bc, ca = b - a, c - b, a - c
+    lengths = np.maximum(np.maximum(np.einsum("fi,fi->f", ab, ab), np.einsum("fi,fi->f", bc, bc)), np.einsum("fi,fi->f", ca, ca))
+    normal = np.cross(ab, -ca)  # (b - a) x (c - a)
+    doubled_area = np.sqrt(np.einsum("fi,fi->f", normal, normal))
+    magnitude = corner_extreme(np.maximum, np.abs(corners)).max(axis=1)
+    tolerance = limit + 4.0 * resolution * magnitude
+    # height = doubled area / longest edge <= tolerance, without the division (a zero-length face has height 0)
+    return doubled_area <= tolerance * np.sqrt(lengths)
 
 
 def duplicate_findings(mesh: Mesh, topology: Topology) -> list[Finding]:
@@ -539,6 +553,10 @@ class MeshAnalysis:
 
 def welded_positions(mesh: Mesh, topology: Topology, reference: np.ndarray) -> np.ndarray:
     """(V, 3) float64 position of each welded vertex id relative to ``reference`` (file unit)."""
+    if topology.vertex_positions is not None:
+        positions = topology.vertex_positions.astype(np.float64)
+        positions -= reference
+        return positions
     corner = first_use(topology)
     used = corner < 3 * mesh.face_count
     positions = np.zeros((topology.id_bound, 3))

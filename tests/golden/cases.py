@@ -92,7 +92,7 @@ def main() -> None:
 
 if __name__ == "__main__":
     sys.path.insert(0, str(ROOT))
-    from meshprops.geometry.crossing import warm_up
+    from meshprops.geometry.warm_up import warm_up
 
     warm_up()  # compiled and cached first, so no recorded output carries the one-time compile notice
     main()

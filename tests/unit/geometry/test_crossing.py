@@ -7,8 +7,7 @@ import numpy as np
 import pytest
 from paths import TESTS
 
-from meshprops.batch.backends import COMPILED_CROSSINGS_FROM_ITEMS, run_batch
-from meshprops.geometry import crossing, shapes
+from meshprops.geometry import shapes
 from meshprops.geometry.crossing import crossing_volume_bound, find_crossings
 from meshprops.geometry.intersections import self_intersection_pairs
 from meshprops.geometry.welding import weld_exact
@@ -147,11 +146,3 @@ def test_one_thread_and_all_cores_find_the_same_pairs():
     np.testing.assert_array_equal(serial.coplanar_pairs, parallel.coplanar_pairs)
 
 
-def test_a_batch_worker_uses_the_compiled_path_for_small_parts(monkeypatch):
-    monkeypatch.setitem(crossing._policy, "every_size", False)
-    run_batch(len, [[0]] * (COMPILED_CROSSINGS_FROM_ITEMS - 1))  # a short batch: as a single file
-    assert not crossing._policy["every_size"]
-    run_batch(len, [[0]] * COMPILED_CROSSINGS_FROM_ITEMS)  # a batch this long switches the process over
-    assert crossing._policy["every_size"]
-    vertices, faces = shapes.box()
-    assert find_crossings(vertices, faces).coplanar_checked  # the compiled path, although only 12 faces

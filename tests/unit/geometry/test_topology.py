@@ -9,7 +9,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from meshprops import mesh_from_arrays
-from meshprops.geometry import shapes
+from meshprops.geometry import compiled, shapes
 from meshprops.geometry.topology import connected_components, is_closed_and_oriented
 from meshprops.geometry.welding import weld_exact
 
@@ -48,7 +48,9 @@ def test_union_find_matches_breadth_first_search(graph):
 @pytest.mark.parametrize(
     "build", [lambda: shapes.box((1, 2, 3)), lambda: shapes.cylinder(1, 2, 12), lambda: shapes.torus(2, 0.5, 12, 8)]
 )
-def test_the_edge_test_accepts_closed_meshes_and_rejects_any_missing_or_flipped_face(build):
+@pytest.mark.parametrize("numpy_only", [False, True], ids=["compiled", "numpy"])
+def test_the_edge_test_accepts_closed_meshes_and_rejects_any_missing_or_flipped_face(build, numpy_only, monkeypatch):
+    monkeypatch.setitem(compiled._policy, "numpy_only", numpy_only)
     vertices, faces = build()
     topology = weld_exact(mesh_from_arrays(vertices, faces))
     assert is_closed_and_oriented(topology)

@@ -9,7 +9,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from meshprops import mesh_from_arrays
-from meshprops.geometry import shapes, welding
+from meshprops.geometry import compiled, shapes, welding
 from meshprops.geometry.topology import is_closed_and_oriented
 from meshprops.geometry.welding import weld_exact, weld_positions
 from meshprops.io import writers
@@ -40,6 +40,7 @@ def test_welding_is_exact(rows, dtype):
 
 def test_welding_stays_exact_when_every_hash_collides(monkeypatch):
     """Force the worst case: every row gets the same hash; rows must still be told apart by their bits."""
+    monkeypatch.setitem(compiled._policy, "numpy_only", True)  # the numpy weld (the compiled one has no truncated hash)
     monkeypatch.setattr(welding, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
     rng = np.random.default_rng(4)
     positions = rng.integers(0, 4, size=(300, 3)).astype(np.float64)
@@ -60,7 +61,8 @@ def test_welding_a_memory_mapped_stl_stays_exact_when_every_hash_collides(tmp_pa
     path = tmp_path / "torus.stl"
     writers.write_binary_stl(path, shapes.triangles_of(vertices, faces))
     mesh = load_mesh(path, "m")
-    honest = weld_exact(mesh)
+    honest = weld_exact(mesh)  # the compiled weld
+    monkeypatch.setitem(compiled._policy, "numpy_only", True)
     monkeypatch.setattr(welding, "_hash_rows", lambda data: np.zeros(data.shape[0], dtype=np.uint64))
     forced = weld_exact(mesh)
     pairs = set(zip(forced.face_vertices.reshape(-1).tolist(), honest.face_vertices.reshape(-1).tolist()))
