@@ -106,13 +106,14 @@ def parse_size(text: str) -> int:
 
 
 def torus_sections(target_faces: int) -> tuple[int, int]:
-    """Major and minor section counts of a torus with about ``target_faces`` triangles.
+    """Major and minor section counts of a torus with at least ``target_faces`` triangles (within 0.1 %).
 
-    The torus has ``2 · major · minor`` triangles; the major count is twice the
-    minor one, so the triangles are close to right isosceles on the mid-circle.
+    The torus has ``2 · major · minor`` triangles; the major count is about twice the
+    minor one, so the triangles are close to right isosceles on the mid-circle. At
+    least the target, so that a goal stated "at 2M triangles" applies to the 2M file.
     """
     minor = max(3, round(math.sqrt(target_faces / 4.0)))
-    major = max(3, round(target_faces / (2.0 * minor)))
+    major = max(3, math.ceil(target_faces / (2.0 * minor)))
     return major, minor
 
 
