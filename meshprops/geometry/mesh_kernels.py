@@ -121,21 +121,19 @@ def closed_and_oriented(face_vertices, vertex_count):
     for a in range(vertex_count):
         for p in range(starts[a], starts[a + 1]):
             b = heads[p]
-            if b == a:
-                return False
-            same = 0
-            for q in range(starts[a], starts[a + 1]):
-                if heads[q] == b:
-                    same += 1
-            if same != 1:
-                return False
-            back = 0
-            for q in range(starts[b], starts[b + 1]):
-                if heads[q] == a:
-                    back += 1
-            if back != 1:
+            if b == a or _edges_to(heads, starts, a, b) != 1 or _edges_to(heads, starts, b, a) != 1:
                 return False
     return True
+
+
+@njit(cache=True, inline="always")
+def _edges_to(heads, starts, tail, head):
+    """How many of ``tail``'s outgoing half-edges end at ``head``."""
+    found = 0
+    for q in range(starts[tail], starts[tail + 1]):
+        if heads[q] == head:
+            found += 1
+    return found
 
 
 @njit(cache=True)
