@@ -44,6 +44,10 @@ CELL_OVER_FACE = 2.0
 #: From this many faces the pair kernel runs on all cores; below, in one thread (its start-up costs
 #: more than the work).
 PARALLEL_FROM_FACES = 20_000
+#: A bucket holding more entries than this means the cells' low key bits collide in a pattern (a
+#: long bar along x, for instance); the buckets are then filled again with the keys scattered.
+#: Cells hold ~10-30 entries on a surface, and a fan around a pole a few thousand.
+PILED_BUCKET_ENTRIES = 20_000
 #: Relative tolerance of the narrow phase (as in the rtree-based check).
 RELATIVE_TOLERANCE = 1e-10
 
@@ -153,7 +157,10 @@ def find_crossings(
     # two cells, and the bucket starts stay small enough to be counted in cache.
     buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 8.0))))
     parts = _thread_count() if parallel else 1
-    starts, member_keys, members, member_low_x = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts)
+    grouped = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts, False)
+    if int(np.diff(grouped[0]).max()) > PILED_BUCKET_ENTRIES:  # cells piled up in a few buckets: scatter them
+        grouped = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts, True)
+    starts, member_keys, members, member_low_x = grouped
     first, second, kind = kernel("grid_pairs")(
         member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, size, dims, relative_tolerance,
         2 if include_vertex_neighbours else 1,

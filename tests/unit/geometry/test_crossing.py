@@ -7,7 +7,7 @@ import numpy as np
 import pytest
 from paths import TESTS
 
-from meshprops.geometry import shapes
+from meshprops.geometry import crossing, shapes
 from meshprops.geometry.crossing import crossing_volume_bound, find_crossings
 from meshprops.geometry.intersections import self_intersection_pairs
 from meshprops.geometry.welding import weld_exact
@@ -40,9 +40,13 @@ def test_agrees_with_the_rtree_check_on_the_example_meshes(path):
     np.testing.assert_array_equal(found.pairs, reference)
 
 
+@pytest.mark.parametrize("scattered", [False, True], ids=["cell-order buckets", "scattered buckets"])
 @pytest.mark.parametrize("seed", range(6))
-def test_agrees_with_the_rtree_check_on_random_triangles(seed):
+def test_agrees_with_the_rtree_check_on_random_triangles(seed, scattered, monkeypatch):
     # Random soups: many crossing pairs in general position, some corners shared (snapped to a lattice).
+    # Scattered: every bucket counts as piled up, so the entries are placed again with scattered keys.
+    if scattered:
+        monkeypatch.setattr(crossing, "PILED_BUCKET_ENTRIES", 0)
     rng = np.random.default_rng(seed)
     centres = rng.uniform(0, 10, size=(400, 1, 3))
     corners = centres + rng.normal(scale=0.8, size=(400, 3, 3))
