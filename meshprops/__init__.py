@@ -9,27 +9,25 @@ The package is laid out as the data flows (see DEVELOPERS.md): ``io`` (files -> 
 the public API; nothing inside the package imports this module.
 """
 
-from .errors import (
-    InputValueError,
-    InvalidMeshError,
-    MeshFileError,
-    MeshpropsError,
-    PhysicsError,
-    UnitError,
-)
-from .io import Mesh, load_mesh, mesh_from_arrays, mesh_from_triangles
-from .measure.body import BodyMeasurement, measure_file, measure_mesh
-from .measure.options import MeasureOptions
-from .physics.mass import MassProperties, combine, rotate_tensor
-from .physics.moments import Moments, integrate_chunks, integrate_triangles
-from .physics.principal import PrincipalFrame, principal_frame
-from .physics.spin import SpinState, spin
-from .validation.checks import validate
-from .validation.findings import Finding, ValidationReport
-from .validation.solid import Solid, SolidOptions, resolve_solid
-from .version import __version__
-
+#: public name -> the module (below this package) that defines it; each loads on first use,
+#: so that ``python -m meshprops`` (which imports this package first) pays only for what the
+#: command runs: a batch run served wholly from the cache never imports numpy.
 _LAZY = {
+    **dict.fromkeys(
+        ("InputValueError", "InvalidMeshError", "MeshFileError", "MeshpropsError", "PhysicsError", "UnitError"),
+        "errors",
+    ),
+    **dict.fromkeys(("Mesh", "load_mesh", "mesh_from_arrays", "mesh_from_triangles"), "io"),
+    **dict.fromkeys(("BodyMeasurement", "measure_file", "measure_mesh"), "measure.body"),
+    "MeasureOptions": "measure.options",
+    **dict.fromkeys(("MassProperties", "combine", "rotate_tensor"), "physics.mass"),
+    **dict.fromkeys(("Moments", "integrate_chunks", "integrate_triangles"), "physics.moments"),
+    **dict.fromkeys(("PrincipalFrame", "principal_frame"), "physics.principal"),
+    **dict.fromkeys(("SpinState", "spin"), "physics.spin"),
+    "validate": "validation.checks",
+    **dict.fromkeys(("Finding", "ValidationReport"), "validation.findings"),
+    **dict.fromkeys(("Solid", "SolidOptions", "resolve_solid"), "validation.solid"),
+    "__version__": "version",
     "load_manifest": "measure.manifest",
     "measure_manifest": "measure.assembly",
     "measure_assembly": "measure.assembly",
@@ -38,12 +36,18 @@ _LAZY = {
 
 
 def __getattr__(name: str):
-    """Assembly and batch functions load on first use, so that measuring one mesh does not import them."""
+    """Every public name loads its module on first use (and is kept here after that)."""
     if name in _LAZY:
         import importlib
 
-        return getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
+        value = getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
+        globals()[name] = value
+        return value
     raise AttributeError(f"module 'meshprops' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_LAZY))
 
 
 __all__ = [

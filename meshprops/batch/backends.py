@@ -13,19 +13,19 @@ task runs :func:`run_batch` over up to ``batch_size`` consecutive items (see
 once, so memory stays bounded on both sides however many files there are.
 ``prepare`` (run in this process, just before a batch is sent) is where a file's
 bytes are read when they are shipped by content.
+
+Importing this module is cheap (no numpy, no process pool machinery): a run whose files all
+come from the cache starts no worker and loads none of the measuring code.
 """
 
 from __future__ import annotations
 
 import math
-import multiprocessing
 import os
 import pickle
 import threading
 from collections import deque
 from collections.abc import Callable, Iterator, Sequence
-from concurrent.futures import ProcessPoolExecutor
-from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass
 
 from ..errors import (
@@ -164,6 +164,8 @@ def _fork_is_safe() -> bool:
     # fork starts workers in milliseconds and they inherit the imported modules; it is only
     # safe while this process runs no other thread (a forked lock held by another thread
     # would stay locked forever in the child).
+    import multiprocessing
+
     return "fork" in multiprocessing.get_all_start_methods() and threading.active_count() == 1
 
 
@@ -179,10 +181,13 @@ class ProcessPoolBackend:
         self.worker_count = int(jobs) if jobs else available_cores()
         if self.worker_count < 1:
             raise InputValueError("--jobs", "a whole number of workers, at least 1", jobs)
-        self._executor: ProcessPoolExecutor | None = None
+        self._executor = None  # a concurrent.futures.ProcessPoolExecutor, once the first batch is sent
 
-    def _pool(self) -> ProcessPoolExecutor:
+    def _pool(self):
         if self._executor is None:
+            import multiprocessing
+            from concurrent.futures import ProcessPoolExecutor
+
             context = multiprocessing.get_context("fork" if _fork_is_safe() else "spawn")
             self._executor = ProcessPoolExecutor(
                 max_workers=self.worker_count, mp_context=context, initializer=use_one_thread
@@ -197,6 +202,8 @@ class ProcessPoolBackend:
         prepare: Callable = _identity,
         batch_size: int | None = None,
     ) -> Iterator[TaskOutcome]:
+        from concurrent.futures.process import BrokenProcessPool
+
         size = batch_size or choose_batch_size(len(items), self.worker_count)
         pool = self._pool()
 

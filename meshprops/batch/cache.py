@@ -12,13 +12,19 @@ So an unchanged file under unchanged settings is not measured again, and a
 changed setting or a new version misses exactly the rows it affects (rows of
 other settings stay and keep serving runs with those settings).
 
+A second table remembers each file's content hash beside its stamp (device, inode,
+size, modification and change times: :class:`~meshprops.io.hashing.FileStamp`), so
+that a re-run reads only the files that changed since; a file whose stamp moved is
+hashed again, and a touched but unchanged file is still served by its content.
+
 Safety:
 
 - The database runs in WAL mode with a busy timeout, and every write is one
   ``BEGIN IMMEDIATE`` transaction, so two runs sharing a cache both finish and
   neither loses the other's rows.
-- Each row also stores the sha256 of its JSON text, checked on every read: a
-  damaged row is dropped (a miss), never served.
+- Each row also stores the sha256 of its JSON text (of its path, stamp and hash for
+  the remembered hashes), checked on every read: a damaged row is dropped (a miss),
+  never served.
 - A file that is not a meshprops cache, or that fails SQLite's own integrity
   check, is reported (one warning, which the command line prints on stderr) and
   rebuilt empty.
@@ -39,7 +45,11 @@ from dataclasses import dataclass
 from pathlib import Path
 
 #: Version of the table layout below; a file of another layout is rebuilt.
-SCHEMA_VERSION = 1
+#: (2: the ``file_hashes`` table.)
+SCHEMA_VERSION = 2
+
+#: Keys per SQL statement in batched lookups (well under SQLite's smallest variable limit, 999).
+LOOKUP_CHUNK = 400
 
 #: Seconds a writer waits for another run's transaction before giving up.
 BUSY_TIMEOUT_SECONDS = 60.0
@@ -54,7 +64,14 @@ _CREATE = (
     " result_sha256 TEXT NOT NULL,"
     " PRIMARY KEY (content_hash, settings_key, tool_version)"
     ") WITHOUT ROWID",
+    "CREATE TABLE IF NOT EXISTS file_hashes ("
+    " path TEXT PRIMARY KEY,"
+    " stamp TEXT NOT NULL,"
+    " content_hash TEXT NOT NULL,"
+    " row_sha256 TEXT NOT NULL"
+    ") WITHOUT ROWID",
 )
+_TABLES = {"meta", "results", "file_hashes"}
 
 
 @dataclass(frozen=True, slots=True, eq=False)
@@ -163,7 +180,7 @@ class ResultCache:
             tables = {row[0] for row in connection.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
             if not tables:
                 self._create_tables(connection)
-            elif tables != {"meta", "results"}:
+            elif tables != _TABLES:
                 raise CorruptCacheError(f"unexpected tables {sorted(tables)}")
             else:
                 row = connection.execute("SELECT value FROM meta WHERE name = 'schema_version'").fetchone()
@@ -218,27 +235,32 @@ class ResultCache:
     def get_many(self, keys: Sequence[CacheKey]) -> list[str | None]:
         """The cached JSON text of each key, ``None`` for a miss, in the order of ``keys``.
 
-        A row whose stored checksum does not match its text is deleted and reported
-        as a miss.
+        One read transaction and a few batched queries for all the keys. A row whose stored
+        checksum does not match its text is deleted and reported as a miss.
         """
         found: dict[tuple[str, str], str] = {}
         damaged: list[tuple[str, str]] = []
-        pairs = sorted({(key.content_hash, key.settings_key) for key in keys})
+        by_settings: dict[str, list[str]] = {}
+        for key in keys:
+            by_settings.setdefault(key.settings_key, []).append(key.content_hash)
         try:
             self._connection.execute("BEGIN")  # one consistent snapshot for every lookup
             try:
-                for content_hash, settings_key in pairs:
-                    row = self._connection.execute(
-                        "SELECT result_json, result_sha256 FROM results"
-                        " WHERE content_hash = ? AND settings_key = ? AND tool_version = ?",
-                        (content_hash, settings_key, self.tool_version),
-                    ).fetchone()
-                    if row is None:
-                        continue
-                    if _sha256_text(row[0]) == row[1]:
-                        found[(content_hash, settings_key)] = row[0]
-                    else:
-                        damaged.append((content_hash, settings_key))
+                for settings_key, hashes in by_settings.items():
+                    unique = sorted(set(hashes))
+                    for start in range(0, len(unique), LOOKUP_CHUNK):
+                        chunk = unique[start : start + LOOKUP_CHUNK]
+                        rows = self._connection.execute(
+                            "SELECT content_hash, result_json, result_sha256 FROM results"
+                            " WHERE tool_version = ? AND settings_key = ?"
+                            f" AND content_hash IN ({','.join('?' * len(chunk))})",
+                            (self.tool_version, settings_key, *chunk),
+                        ).fetchall()
+                        for content_hash, text, checksum in rows:
+                            if _sha256_text(text) == checksum:
+                                found[(content_hash, settings_key)] = text
+                            else:
+                                damaged.append((content_hash, settings_key))
             finally:
                 if self._connection.in_transaction:
                     self._connection.execute("COMMIT")
@@ -254,6 +276,55 @@ class ResultCache:
         self.hits += hits
         self.misses += len(results) - hits
         return results
+
+    def remembered_hashes(self, paths: Sequence[str]) -> dict[str, tuple[str, str]]:
+        """``path -> (stamp text, content hash)`` remembered for those of ``paths`` that have one.
+
+        Paths are compared as given (the caller makes them absolute). A damaged row is left
+        out (and so its file is hashed again and the row rewritten); a database that cannot
+        be read remembers nothing.
+        """
+        remembered: dict[str, tuple[str, str]] = {}
+        unique = sorted(set(paths))
+        try:
+            self._connection.execute("BEGIN")
+            try:
+                for start in range(0, len(unique), LOOKUP_CHUNK):
+                    chunk = unique[start : start + LOOKUP_CHUNK]
+                    rows = self._connection.execute(
+                        "SELECT path, stamp, content_hash, row_sha256 FROM file_hashes"
+                        f" WHERE path IN ({','.join('?' * len(chunk))})",
+                        chunk,
+                    ).fetchall()
+                    for path, stamp, content_hash, checksum in rows:
+                        if _hash_row_checksum(path, stamp, content_hash) == checksum:
+                            remembered[path] = (stamp, content_hash)
+            finally:
+                if self._connection.in_transaction:
+                    self._connection.execute("COMMIT")
+        except sqlite3.DatabaseError as error:
+            self._recover(error)
+            return {}
+        return remembered
+
+    def remember_hashes(self, entries: Iterable[tuple[str, str, str]]) -> None:
+        """Store ``(path, stamp text, content hash)`` triples in one transaction (a later one wins)."""
+        rows = [(path, stamp, content_hash, _hash_row_checksum(path, stamp, content_hash)) for path, stamp, content_hash in entries]
+        if not rows:
+            return
+        try:
+            self._connection.execute("BEGIN IMMEDIATE")
+            try:
+                self._connection.executemany(
+                    "INSERT OR REPLACE INTO file_hashes (path, stamp, content_hash, row_sha256) VALUES (?, ?, ?, ?)", rows
+                )
+                self._connection.execute("COMMIT")
+            except BaseException:
+                if self._connection.in_transaction:
+                    self._connection.execute("ROLLBACK")
+                raise
+        except sqlite3.DatabaseError as error:
+            self._recover(error)
 
     def get(self, key: CacheKey) -> str | None:
         """The cached JSON text for ``key``, or ``None``."""
@@ -328,6 +399,10 @@ class ResultCache:
 
 def _sha256_text(text: str) -> str:
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def _hash_row_checksum(path: str, stamp: str, content_hash: str) -> str:
+    return _sha256_text(f"{path}\n{stamp}\n{content_hash}")
 
 
 class _ExclusiveLock:

@@ -8,6 +8,9 @@ that one unreadable file never hides the others' results. How the outcomes are r
 Where the tasks run is a backend (:mod:`meshprops.batch.backends`: serial, a local process
 pool, a Dask cluster); what was computed before can come from the content-hash cache
 (:mod:`meshprops.batch.cache`). Outcomes are the same, in the same order, in every case.
+
+The reading, checking and measuring code (numpy, numba's kernels) is imported where a file is
+first read, never at import: a run whose every file comes from the cache loads none of it.
 """
 
 from __future__ import annotations
@@ -18,15 +21,16 @@ import os
 from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass, fields
 
+from typing import TYPE_CHECKING
+
 from ..errors import MeshpropsError
-from ..io import load_mesh
-from ..io.hashing import file_sha256
-from ..io.loaders import load_mesh_content
-from ..measure.body import BodyMeasurement, measure_mesh, unreadable_measurement
-from ..measure.manifest import load_manifest
-from ..measure.options import MeasureOptions
-from ..validation.solid import CheckResult, SolidOptions, check_mesh, unreadable_check
+from ..io.hashing import hash_and_stamp, stamp_of
 from .cache import CacheKey, ResultCache, settings_fingerprint
+
+if TYPE_CHECKING:
+    from ..measure.body import BodyMeasurement
+    from ..measure.options import MeasureOptions
+    from ..validation.solid import CheckResult, SolidOptions
 
 #: File extensions taken from a folder (compared case-insensitively).
 MESH_EXTENSIONS = (".stl", ".obj", ".ply")
@@ -86,7 +90,11 @@ class FileJob:
     def load(self):
         """The :class:`~meshprops.io.Mesh` (from ``content`` when shipped, else from ``path``)."""
         if self.content is not None:
+            from ..io.loaders import load_mesh_content
+
             return load_mesh_content(self.content, self.path, self.length_unit)
+        from ..io.loaders import load_mesh
+
         return load_mesh(self.path, self.length_unit)
 
 
@@ -156,6 +164,36 @@ def run_files(
 CACHE_WRITE_BATCH = 256
 
 
+def content_hashes(paths: Sequence[str], cache: ResultCache) -> list[str | MeshpropsError]:
+    """Each file's ``"sha256:<hex>"``, or the :class:`MeshpropsError` reading it gives, in order.
+
+    A file whose stamp (:class:`~meshprops.io.hashing.FileStamp`) is the one ``cache``
+    remembers with its hash is not read; every other file is hashed, and its hash remembered
+    when its stamp has settled.
+    """
+    absolute = [os.path.abspath(path) for path in paths]
+    remembered = cache.remembered_hashes(absolute)
+    hashes: list[str | MeshpropsError] = []
+    learned: list[tuple[str, str, str]] = []
+    for path, full in zip(paths, absolute):
+        known = remembered.get(full)
+        if known is not None:
+            stamp = stamp_of(path)
+            if stamp is not None and stamp.text() == known[0]:
+                hashes.append(known[1])
+                continue
+        try:
+            content_hash, stamp = hash_and_stamp(path)
+        except MeshpropsError as error:
+            hashes.append(error)
+            continue
+        hashes.append(content_hash)
+        if stamp is not None:
+            learned.append((full, stamp.text(), content_hash))
+    cache.remember_hashes(learned)
+    return hashes
+
+
 def run_cached_files(
     jobs: Sequence[FileJob],
     task: Callable[[FileJob], dict],
@@ -165,6 +203,7 @@ def run_cached_files(
     backend=None,
     ship_content: bool = False,
     on_outcome: Callable[[FileOutcome], None] | None = None,
+    before_computing: Callable[[], None] | None = None,
 ) -> list[FileOutcome]:
     """Per-file records (plain JSON data, ``"source"`` first) for every job, in input order,
     served from ``cache`` where the file's content and the settings are unchanged.
@@ -173,15 +212,19 @@ def run_cached_files(
     (all of them without a cache). The stored record leaves out ``"source"``, so a copy of a
     file elsewhere is served under its own path. Errors are never cached. A file that cannot
     be hashed gets the same one-line error as reading it would give.
+
+    ``before_computing`` is called once, before the first task is sent, when there is any
+    file to compute (never on a run that the cache serves whole): where to set up what only
+    computing needs, before pool workers start.
     """
     keys: list[CacheKey | None] = [None] * len(jobs)
     early: dict[int, FileOutcome] = {}
     if cache is not None:
-        for index, job in enumerate(jobs):
-            try:
-                keys[index] = CacheKey(file_sha256(job.path), settings_key(job))
-            except MeshpropsError as error:
-                early[index] = FileOutcome(job.path, error=error)
+        for index, (job, content_hash) in enumerate(zip(jobs, content_hashes([job.path for job in jobs], cache))):
+            if isinstance(content_hash, MeshpropsError):
+                early[index] = FileOutcome(job.path, error=content_hash)
+            else:
+                keys[index] = CacheKey(content_hash, settings_key(job))
         found = cache.get_many([key for key in keys if key is not None])
         texts = iter(found)
         for index, key in enumerate(keys):
@@ -191,13 +234,17 @@ def run_cached_files(
             if text is not None:
                 early[index] = FileOutcome(jobs[index].path, result={"source": jobs[index].path, **json.loads(text)})
     misses = [index for index in range(len(jobs)) if index not in early]
-    computed = iter_files(
-        [jobs[index] for index in misses],
-        task,
-        label=lambda job: job.path,
-        backend=backend,
-        prepare=with_content if ship_content else None,
-    )
+    computed = iter(())
+    if misses:
+        if before_computing is not None:
+            before_computing()
+        computed = iter_files(
+            [jobs[index] for index in misses],
+            task,
+            label=lambda job: job.path,
+            backend=backend,
+            prepare=with_content if ship_content else None,
+        )
     outcomes: list[FileOutcome] = []
     pending_writes: list[tuple[CacheKey, str]] = []
     for index in range(len(jobs)):
@@ -216,13 +263,28 @@ def run_cached_files(
     return outcomes
 
 
+#: The ``check`` settings of :class:`~meshprops.validation.solid.SolidOptions` ``()`` (strict,
+#: weld tolerance, volume tolerance), for jobs that carry none; written out here so that keying a
+#: run does not import the validation code (a test holds the two equal).
+DEFAULT_CHECK_SETTINGS = (False, None, 1e-6)
+
+
 def check_settings_key(job: FileJob) -> str:
-    """What a ``check`` result depends on besides the file's content: its length unit."""
-    options = job.check_options or SolidOptions()
+    """What a ``check`` result depends on besides the file's content: its length unit and the
+    recovery options (strict, weld and volume tolerances)."""
+    options = job.check_options
+    values = DEFAULT_CHECK_SETTINGS if options is None else (options.strict, options.weld_tolerance, options.volume_tolerance)
+    # repr beside each value: 0.0 and -0.0 are equal keys of a dict but not the same setting
+    return _check_settings_key(job.length_unit, tuple((value, repr(value)) for value in values))
+
+
+@functools.lru_cache(maxsize=64)
+def _check_settings_key(length_unit: str, values: tuple) -> str:
+    (strict, _), (weld_tolerance, _), (volume_tolerance, _) = values
     return settings_fingerprint(
         "check",
-        {"length_unit": job.length_unit, "strict": options.strict, "weld_tolerance": options.weld_tolerance,
-         "volume_tolerance": options.volume_tolerance},
+        {"length_unit": length_unit, "strict": strict, "weld_tolerance": weld_tolerance,
+         "volume_tolerance": volume_tolerance},
     )  # fmt: skip
 
 
@@ -242,6 +304,9 @@ def raise_first_error(outcomes: Sequence[FileOutcome]) -> list:
 
 def check_task(item: tuple[str, str] | FileJob, options: SolidOptions | None = None) -> CheckResult:
     """Load one ``(path, length_unit)`` (or :class:`FileJob`) and run every check on it."""
+    from ..io.loaders import load_mesh
+    from ..validation.solid import check_mesh
+
     if isinstance(item, FileJob):
         return check_mesh(item.load(), item.check_options)
     path, unit = item
@@ -257,6 +322,8 @@ def check_inputs(paths, length_unit: str = "mm") -> list[tuple[str, str]]:
     files: list[tuple[str, str]] = []
     for path in expand_inputs(paths):
         if str(path).lower().endswith(MANIFEST_EXTENSION):
+            from ..measure.manifest import load_manifest
+
             files.extend((body.mesh_path, body.length_unit) for body in load_manifest(path).bodies)
         else:
             files.append((os.fspath(path), length_unit))
@@ -279,6 +346,10 @@ def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: s
     An unreadable file raises its error (:class:`meshprops.errors.MeshFileError`) before
     anything is reported. ``options.about`` is in metres.
     """
+    from ..io.loaders import load_mesh
+    from ..measure.body import measure_mesh
+    from ..measure.options import MeasureOptions
+
     options = options or MeasureOptions()
     unit = options.length_unit
     meshes = raise_first_error(run_files(expand_inputs(paths), lambda path: load_mesh(path, unit)))
@@ -287,6 +358,7 @@ def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: s
 
 __all__ = [
     "FileJob", "FileOutcome", "MESH_EXTENSIONS", "check_every_file", "check_files", "check_inputs", "check_items",
+    "content_hashes",
     "check_settings_key", "check_task", "expand_inputs", "iter_files", "measure_every_file", "measure_files",
     "measure_settings_key", "raise_first_error", "run_cached_files", "run_files", "with_content",
 ]  # fmt: skip
@@ -303,6 +375,8 @@ def check_every_file(paths, length_unit: str = "mm") -> list[CheckResult]:
 
 def check_items(items: Sequence[tuple[str, str]]) -> list[CheckResult]:
     """Check every ``(mesh path, length unit)`` of :func:`check_inputs`; an unreadable one gets its own entry."""
+    from ..validation.solid import unreadable_check
+
     outcomes = run_files(items, check_task, label=lambda item: item[0])
     return [
         outcome.result if outcome.ok else unreadable_check(outcome.path, unit, outcome.error)
@@ -316,6 +390,10 @@ def measure_every_file(paths, options: MeasureOptions | None = None) -> list[Bod
     A file that cannot be read gets its own body (:func:`~meshprops.measure.body.unreadable_measurement`:
     ``valid`` false, no numbers, one ``unreadable`` finding); the others are still measured.
     """
+    from ..io.loaders import load_mesh
+    from ..measure.body import measure_mesh, unreadable_measurement
+    from ..measure.options import MeasureOptions
+
     options = options or MeasureOptions()
     unit = options.length_unit
     outcomes = run_files([os.fspath(p) for p in paths], lambda path: load_mesh(path, unit))

@@ -10,7 +10,6 @@ from typing import Annotated, Optional
 import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
-from ..measure.options import MeasureOptions
 from ..units import DEFAULT_LENGTH_UNIT
 from .app import Command, app, one_line_errors, say, write_report
 from .options import length_unit, parse_vector
@@ -68,6 +67,8 @@ def balance(
         precession_rate=precession_rate,
     )
     from ..io.paths import refuse_output_over_inputs
+
+    from ..measure.options import MeasureOptions
 
     refuse_output_over_inputs(output, [body])  # (a manifest's meshes are read, never written)
     if body.suffix.lower() == ".toml":

@@ -55,8 +55,12 @@ def run_records(
     *,
     description: str,
     collected: list[str] | None = None,
+    before_computing: Callable[[], None] | None = None,
 ):
     """Run ``task`` over ``jobs`` as ``batch`` says; the :class:`FileOutcome` of each, in order.
+
+    ``before_computing`` runs once before the first file is computed (not when the cache
+    serves every file).
 
     With ``--json-lines`` each record is written as a line as it arrives (to stdout, or
     appended to ``collected`` for a report file written at the end) and each unreadable
@@ -95,6 +99,7 @@ def run_records(
                 backend=backend,
                 ship_content=batch.ship_content,
                 on_outcome=on_outcome,
+                before_computing=before_computing,
             )
     finally:
         if cache is not None:

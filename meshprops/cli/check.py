@@ -35,6 +35,9 @@ from .batching import (
 )
 from .options import length_unit
 
+#: ``--volume-tolerance`` when not given: SolidOptions' own default (a test holds them equal).
+DEFAULT_VOLUME_TOLERANCE = 1e-6
+
 
 @app.command(cls=Command)
 @one_line_errors
@@ -53,7 +56,7 @@ def check(
     json_lines: JsonLines = False,
     strict: Annotated[bool, typer.Option("--strict", help="Recover nothing (no crack closing, shell union or bounded crossings): every imperfection is an error.")] = False,
     weld_tolerance: Annotated[Optional[float], typer.Option("--weld-tolerance", help="Largest crack closed, in the mesh unit (default 1e-6 of the bounding-box diagonal; 0 turns it off).")] = None,
-    volume_tolerance: Annotated[float, typer.Option("--volume-tolerance", help="Largest bound on the volume effect of faces crossing their own shell, as a fraction of the volume.")] = 1e-6,
+    volume_tolerance: Annotated[float, typer.Option("--volume-tolerance", help="Largest bound on the volume effect of faces crossing their own shell, as a fraction of the volume.")] = DEFAULT_VOLUME_TOLERANCE,
 ) -> None:
     """Validate mesh files with every check (self-intersections included), apply the gate's
     rules, compare with the baseline and roll up the mass budget.
@@ -61,7 +64,7 @@ def check(
     Exit codes: 0 passed (warnings printed, allowed unless fail_on = "warning"); 1 an error
     finding or a rule, baseline or budget violation; 2 usage or unreadable input.
     """
-    from ..gate.runner import load_gate
+    from ..gate.discovery import gate_files
     from ..io.paths import refuse_output_over_inputs
 
     refuse_output_over_inputs(output, files or [])  # before anything is read, even a manifest
@@ -75,14 +78,18 @@ def check(
     if not given and not all_files:
         say("error: give mesh files or folders to check, or --all for every mesh under the current directory")
         raise typer.Exit(EXIT_USAGE)
-    from ..validation.solid import SolidOptions
+    solid = None  # the defaults; SolidOptions (and the validation code) is loaded only when needed
+    if strict or weld_tolerance is not None or volume_tolerance != DEFAULT_VOLUME_TOLERANCE:
+        from ..validation.solid import SolidOptions
 
-    solid = SolidOptions(strict=strict, weld_tolerance=weld_tolerance, volume_tolerance=volume_tolerance)
+        solid = SolidOptions(strict=strict, weld_tolerance=weld_tolerance, volume_tolerance=volume_tolerance)
+    if gate_files() == (None, None) and not all_files:
+        _plain_check(given, units or "mm", batch, json_output, output, html_report, solid)
+    from ..gate.runner import load_gate
+
     announce_first_compile()
     config, baseline = load_gate()
-    if config is None and baseline is None and not all_files:
-        _plain_check(given, units or "mm", batch, json_output, output, html_report, solid)
-    if strict or weld_tolerance is not None or volume_tolerance != 1e-6:
+    if solid is not None:
         raise InputValueError(
             "--strict/--weld-tolerance/--volume-tolerance", "the plain check (not yet with the gate in force)", "given"
         )
@@ -106,17 +113,15 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
         expand_inputs,
     )
     from ..io.paths import refuse_output_over_inputs
-    from ..output.gate import plain_gate_fields
-    from ..output.records import (
-        check_record,
+    from ..output.plain_records import (
+        check_document_of,
         first_error_line,
         is_unreadable,
+        plain_gate_fields,
         records_of,
-        unreadable_check_record,
+        to_json,
     )
-    from ..output.renderers import to_json
-    from ..output.serialize import check_document_of
-    from ..output.table import render_check_table
+    from ..output.records import check_record
 
     pairs = check_inputs(given, units)
     inputs = expand_inputs(given) + [path for path, _ in pairs]
@@ -127,16 +132,19 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
         raise InputValueError("FILES", "at least one mesh file (folders are searched for .stl, .obj, .ply)", given)
     units_of = {job.path: job.length_unit for job in work}
     collected = [] if batch.json_lines and output is not None else None
-    outcomes = run_records(work, check_record, check_settings_key, batch, description="check", collected=collected)
+    outcomes = run_records(
+        work, check_record, check_settings_key, batch, description="check", collected=collected,
+        before_computing=announce_first_compile,
+    )  # fmt: skip
     if batch.json_lines:
         records = [outcome.result for outcome in outcomes if outcome.ok]
         if collected is not None:
             write_report("".join(collected), output)
     else:
         # Every file reported: an unreadable one is its own entry (issue 9).
-        records = records_of(outcomes, lambda outcome: unreadable_check_record(outcome, units_of[outcome.path]))
+        records = records_of(outcomes, lambda outcome: _unreadable_record(outcome, units_of[outcome.path]))
         doc = plain_gate_fields(check_document_of(records, input_length_unit=units))
-        write_report(to_json(doc) if json_output else render_check_table(doc), output)
+        write_report(to_json(doc) if json_output else _check_table(doc), output)
         if html_report is not None:  # the page draws each mesh: built here, from the files themselves
             readable = [job for job, record in zip(work, records) if not is_unreadable(record)]  # nothing to draw
             _write_html_report([check_task(job) for job in readable], html_report)
@@ -148,6 +156,18 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
     # warnings inform without blocking: a pre-commit hook refuses on any non-zero code
     raise typer.Exit(EXIT_INVALID if any(not record["valid"] for record in records) else EXIT_OK)
+
+
+def _unreadable_record(outcome, length_unit: str) -> dict:
+    from ..output.records import unreadable_check_record
+
+    return unreadable_check_record(outcome, length_unit)
+
+
+def _check_table(doc: dict) -> str:
+    from ..output.table import render_check_table
+
+    return render_check_table(doc)
 
 
 def _gate_check(given, config, baseline, units, density, all_files, batch, json_output, output, html_report) -> None:

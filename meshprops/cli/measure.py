@@ -10,8 +10,6 @@ import typer
 
 from ..errors import EXIT_INVALID, EXIT_OK, InputValueError
 from ..io.paths import refuse_output_over_inputs
-from ..measure.options import MeasureOptions
-from ..physics.mass import check_density
 from ..units import DEFAULT_LENGTH_UNIT, metres_per
 from .app import (
     FILES_METAVAR,
@@ -39,7 +37,6 @@ from .options import (
     manifest_point,
     parse_vector,
 )
-from .solid_file import check_solid_target, write_integrated_solid
 
 SIMULATOR_FORMATS = ("urdf", "sdf", "mjcf")
 
@@ -77,6 +74,8 @@ def measure(
 ) -> None:
     """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
     from ..batch.runner import FileJob, expand_inputs, measure_settings_key
+    from ..measure.options import MeasureOptions
+    from ..physics.mass import check_density
     from ..output.records import (
         MeasureRecord,
         first_error_line,
@@ -133,6 +132,8 @@ def measure(
         volume_tolerance=volume_tolerance,
     )
     if write_solid is not None:
+        from .solid_file import check_solid_target
+
         check_solid_target(write_solid, files)
     announce_first_compile()
     work = [FileJob(path, units) for path in expand_inputs([str(path) for path in files])]
@@ -162,6 +163,7 @@ def measure(
     invalid = [record for record in records if not record["valid"]]
     if write_solid is not None and records and not invalid:
         from ..measure.body import measure_file
+        from .solid_file import write_integrated_solid
 
         write_integrated_solid(write_solid, measure_file(str(files[0]), options, on_invalid="report"))
     for record in invalid:

@@ -6,10 +6,13 @@ user typed them in (the command converts them with :func:`meshprops.units.metres
 
 from __future__ import annotations
 
-import numpy as np
+from typing import TYPE_CHECKING
 
 from ..errors import InputValueError
 from ..units import canonical_length_unit, display_system, rpm_to_rad_per_s
+
+if TYPE_CHECKING:  # numpy loads where a vector is parsed: a command that takes none never imports it
+    import numpy as np
 
 
 def length_unit(text: str, name: str = "--units") -> str:
@@ -43,6 +46,8 @@ def parse_vector(text: str | None, name: str, *, source: str | None = None) -> n
     """Parse ``"X,Y,Z"`` into a finite (3,) float64 array; ``None`` passes through."""
     if text is None:
         return None
+    import numpy as np
+
     parts = [p.strip() for p in str(text).split(",")]
     try:
         vector = np.array([float(p) for p in parts], dtype=np.float64)
@@ -55,6 +60,8 @@ def parse_vector(text: str | None, name: str, *, source: str | None = None) -> n
 
 def angular_velocity(spin_text: str | None, rpm: float | None, axis_text: str | None) -> np.ndarray | None:
     """``--spin WX,WY,WZ`` (rad/s) or ``--rpm N --axis AX,AY,AZ`` -> (3,) rad/s, or ``None``."""
+    import numpy as np
+
     if spin_text is not None and rpm is not None:
         raise InputValueError("--spin/--rpm", "one of --spin or --rpm, not both", f"{spin_text} and {rpm}")
     if spin_text is not None:

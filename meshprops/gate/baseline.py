@@ -51,9 +51,9 @@ import numpy as np
 
 from ..errors import BaselineError
 from ..io.atomic import write_atomically
+from .discovery import BASELINE_FILE_NAME
 from .rules import FAIL, PASS, RULE_BASELINE, Verdict
 
-BASELINE_FILE_NAME = "meshprops-baseline.json"
 BASELINE_FORMAT = "meshprops.baseline"
 BASELINE_FORMAT_VERSION = 1
 BASELINE_UNITS = {"length": "m", "volume": "m^3", "mass": "kg", "density": "kg/m^3", "inertia": "kg*m^2"}

@@ -77,7 +77,6 @@ from __future__ import annotations
 
 import os
 import re
-import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -99,9 +98,8 @@ from .budget import (
     DEFAULT_GROWTH_ALLOWANCE_SOURCE,
     MATURITIES,
 )
+from .discovery import CONFIG_FILE_NAME, PYPROJECT_FILE_NAME, find_config  # noqa: F401  (part of this module's API)
 
-CONFIG_FILE_NAME = "meshprops.toml"
-PYPROJECT_FILE_NAME = "pyproject.toml"
 CONFIG_VERSION = 1
 FAIL_ON = ("error", "warning")
 
@@ -285,38 +283,6 @@ def glob_matches(pattern: str, relative_path: str) -> bool:
 
 
 # ------------------------------------------------------------------------------ finding and loading
-
-
-def find_config(start: str | os.PathLike | None = None) -> str | None:
-    """The path of the configuration in force for ``start`` (default: the current directory), or ``None``.
-
-    From ``start`` upward, each folder is asked for ``meshprops.toml`` first, then
-    for a ``pyproject.toml`` holding a ``[tool.meshprops]`` table.
-    """
-    folder = Path(os.path.abspath(os.fspath(start) if start is not None else os.getcwd()))
-    for candidate in (folder, *folder.parents):
-        own = candidate / CONFIG_FILE_NAME
-        if own.is_file():
-            return str(own)
-        pyproject = candidate / PYPROJECT_FILE_NAME
-        if pyproject.is_file() and _has_tool_table(pyproject):
-            return str(pyproject)
-    return None
-
-
-def _has_tool_table(pyproject: Path) -> bool:
-    try:
-        text = pyproject.read_text(encoding="utf-8", errors="replace")
-    except OSError:
-        return False
-    if "meshprops" not in text:
-        return False
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError:
-        # A broken pyproject.toml that mentions a [tool.meshprops] table is ours to report.
-        return re.search(r"^\s*\[\s*tool\s*\.\s*meshprops", text, re.MULTILINE) is not None
-    return isinstance(data.get("tool"), dict) and "meshprops" in data["tool"]
 
 
 def load_config(path: str | os.PathLike) -> GateConfig:

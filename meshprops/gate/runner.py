@@ -155,13 +155,13 @@ def load_gate(start: str | None = None):
     The configuration is found from there upward; the baseline is
     ``meshprops-baseline.json`` in that folder itself.
     """
-    from .baseline import BASELINE_FILE_NAME, read_baseline
-    from .config import find_config, load_config
+    from .baseline import read_baseline
+    from .config import load_config
+    from .discovery import gate_files
 
-    config_path = find_config(start)
+    config_path, baseline_path = gate_files(start)
     config = load_config(config_path) if config_path is not None else None
-    baseline_path = os.path.join(start or os.getcwd(), BASELINE_FILE_NAME)
-    baseline = read_baseline(baseline_path) if os.path.exists(baseline_path) else None
+    baseline = read_baseline(baseline_path) if baseline_path is not None else None
     return config, baseline
 
 

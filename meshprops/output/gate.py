@@ -9,6 +9,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..gate.rules import Verdict
+from .plain_records import plain_gate_fields  # noqa: F401  (re-exported)
 
 
 def verdict_to_dict(verdict: Verdict) -> dict:
@@ -306,13 +307,3 @@ def budget_document(rollup, *, config_path: str) -> dict:
         "budget": budget_to_dict(rollup),
         "cautions": [_CAUTION],
     }
-
-
-def plain_gate_fields(doc: dict) -> dict:
-    """A check document made without a gate, with the gate's top-level keys: ``gate`` (no
-    configuration, no baseline) and ``budget`` (null). Its file entries stay the batch records
-    (each ``--json-lines`` line is exactly one of them)."""
-    passed = all(entry["valid"] for entry in doc["files"])
-    doc["gate"] = {"config": None, "baseline": None, "fail_on": "error", "passed": passed, "exit_code": 0 if passed else 1, "notes": []}
-    doc["budget"] = None
-    return doc

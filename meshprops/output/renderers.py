@@ -7,20 +7,15 @@ function and one line in the table.
 
 from __future__ import annotations
 
-import json
 from collections.abc import Callable
 from functools import partial
 
 from ..errors import InputValueError
 from .body_table import TableDisplay
 from .csv_table import breakdown_csv
+from .plain_records import to_json
 from .simulators import inertial_blocks
 from .table import render_assembly_table, render_table
-
-
-def to_json(doc: dict) -> str:
-    """Serialize with full float precision (repr round-trips); NaN is never emitted."""
-    return json.dumps(doc, indent=2, allow_nan=False) + "\n"
 
 
 def _json(doc: dict, inertial_form: str) -> tuple[str, tuple[str, ...]]:

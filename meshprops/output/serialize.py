@@ -17,6 +17,7 @@ from ..physics.plausibility import Plausibility
 from ..units import SI_UNITS
 from ..validation.findings import Finding
 from ..version import __version__
+from .plain_records import CHECK_SCHEMA_NAME, CHECK_SCHEMA_VERSION, check_document_of  # noqa: F401  (re-exported)
 
 SCHEMA_NAME = "meshprops.measure"
 
@@ -162,12 +163,6 @@ def document(bodies: Sequence[dict], *, input_length_unit: str, total: dict | No
     return doc
 
 
-CHECK_SCHEMA_NAME = "meshprops.check"
-
-
-CHECK_SCHEMA_VERSION = 1
-
-
 def check_to_dict(result) -> dict:
     """One checked file (:class:`meshprops.validation.checks.CheckResult`) as plain JSON data."""
     report = result.report
@@ -194,25 +189,6 @@ def check_to_dict(result) -> dict:
 def check_document(results, *, input_length_unit: str) -> dict:
     """The JSON document of ``meshprops check``: one entry per file plus totals."""
     return check_document_of([check_to_dict(result) for result in results], input_length_unit=input_length_unit)
-
-
-def check_document_of(files: Sequence[dict], *, input_length_unit: str) -> dict:
-    """The JSON document of ``meshprops check`` around already-serialized files (``check_to_dict``)."""
-    files = list(files)
-    return {
-        "schema": CHECK_SCHEMA_NAME,
-        "schema_version": CHECK_SCHEMA_VERSION,
-        "meshprops_version": __version__,
-        "units": dict(SI_UNITS, input_length_unit=input_length_unit),
-        "files": files,
-        "summary": {
-            "files": len(files),
-            "valid": sum(1 for f in files if f["valid"]),
-            "errors": sum(f["errors"] for f in files),
-            "warnings": sum(f["warnings"] for f in files),
-            "unreadable": sum(1 for f in files if any(x["code"] == "unreadable" for x in f["findings"])),
-        },
-    }
 
 
 if TYPE_CHECKING:  # the assembly machinery is imported only where a manifest is measured

@@ -245,3 +245,43 @@ def test_manifest_refuses_options_it_cannot_use():
     code, _, stderr = _run("measure", rover, "--cache", "somewhere.sqlite")
     assert code == 2 and "a manifest is measured in this process" in stderr
 
+
+
+_RUN_AND_LIST_MODULES = """
+import json, sys
+from meshprops.cli.app import main
+try:
+    main(sys.argv[2:])
+except SystemExit as done:
+    code = done.code
+heavy = ("numpy", "numba", "meshprops.geometry.crossing_kernels", "meshprops.validation.checks",
+         "meshprops.measure.body", "meshprops.gate.runner", "multiprocessing")
+with open(sys.argv[1], "w") as report:
+    json.dump({"code": code, "loaded": [name for name in heavy if name in sys.modules]}, report)
+sys.exit(code)
+"""
+
+
+def test_a_run_served_wholly_from_the_cache_loads_no_measuring_code(tmp_path):
+    # In a fresh interpreter (this one has imported everything): the run that the cache serves
+    # whole prints the uncached run's report byte for byte, with its exit code and stderr
+    # lines, without importing numpy, numba's kernels, the validation, the gate or a pool.
+    import subprocess
+    import sys
+
+    folder = _fleet(tmp_path / "fleet", broken=False)
+    database = tmp_path / "results.sqlite"
+    uncached = _run("check", folder, "--json", "--jobs", "2")
+    assert uncached[0] == 1  # the cracked part
+    assert _run("check", folder, "--json", "--jobs", "2", "--cache", database) == uncached  # cold: fills it
+    listing = tmp_path / "loaded.json"
+    warm = subprocess.run(
+        [sys.executable, "-c", _RUN_AND_LIST_MODULES, str(listing), "check", str(folder), "--json", "--jobs", "2", "--cache", str(database)],
+        capture_output=True, text=True, cwd=tmp_path,
+    )  # fmt: skip
+    assert (warm.returncode, warm.stdout, warm.stderr) == uncached
+    assert json.loads(listing.read_text()) == {"code": 1, "loaded": []}
+    # a file touched but unchanged is hashed again and still served
+    (folder / "frame" / "chassis.stl").touch()
+    assert _run("check", folder, "--json", "--cache", database) == uncached
+    assert len(_rows(database)) == 6

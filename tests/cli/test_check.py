@@ -59,3 +59,12 @@ def test_measure_json_reports_shell_statistics(tmp_path):
     assert result.exit_code == 0
     mesh = json.loads(result.stdout)["bodies"][0]["mesh"]
     assert (mesh["shells"], mesh["voids"], mesh["holes"]) == (2, 1, 0)
+
+
+def test_the_default_volume_tolerance_is_the_validation_s():
+    # check builds no SolidOptions when every recovery option is at its default (so that a run
+    # the cache serves loads no validation code); the two defaults must stay one number.
+    from meshprops.cli.check import DEFAULT_VOLUME_TOLERANCE
+    from meshprops.validation.solid import SolidOptions
+
+    assert DEFAULT_VOLUME_TOLERANCE == SolidOptions().volume_tolerance

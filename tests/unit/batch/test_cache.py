@@ -150,3 +150,49 @@ def test_two_concurrent_writers_lose_nothing(tmp_path):
         texts = cache.get_many(keys)
     assert texts == [_result(f"{writer}/{index}") for writer in (0, 1) for index in range(400)]
     assert sqlite3.connect(path).execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+
+
+def test_remembered_hashes_round_trip_and_a_damaged_row_is_not_trusted(tmp_path):
+    path = tmp_path / "cache.sqlite"
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.remembered_hashes(["/parts/a.stl"]) == {}
+        cache.remember_hashes([("/parts/a.stl", "1:2:3:4:5", "sha256:aa"), ("/parts/b.stl", "1:9:3:4:5", "sha256:bb")])
+        cache.remember_hashes([("/parts/a.stl", "1:2:3:4:6", "sha256:cc")])  # a later one wins
+        assert cache.remembered_hashes(["/parts/a.stl", "/parts/b.stl", "/parts/c.stl"]) == {
+            "/parts/a.stl": ("1:2:3:4:6", "sha256:cc"),
+            "/parts/b.stl": ("1:9:3:4:5", "sha256:bb"),
+        }
+    raw = sqlite3.connect(path)
+    raw.execute("UPDATE file_hashes SET content_hash = 'sha256:dd' WHERE path = '/parts/b.stl'")
+    raw.commit()
+    raw.close()
+    with ResultCache(path, tool_version=VERSION) as cache:
+        assert cache.remembered_hashes(["/parts/a.stl", "/parts/b.stl"]) == {"/parts/a.stl": ("1:2:3:4:6", "sha256:cc")}
+
+
+def test_lookups_are_batched_beyond_one_statement(tmp_path):
+    # More keys than one statement takes, two settings: every hit found, in the order asked.
+    from meshprops.batch.cache import LOOKUP_CHUNK
+
+    count = 2 * LOOKUP_CHUNK + 7
+    other = settings_fingerprint("check", {"length_unit": "m"})
+    keys = [_key(f"part {index}".encode(), CHECK_MM if index % 3 else other) for index in range(count)]
+    with ResultCache(tmp_path / "cache.sqlite", tool_version=VERSION) as cache:
+        cache.put_many((key, _result(str(index))) for index, key in enumerate(keys) if index % 2 == 0)
+        found = cache.get_many(keys[::-1])
+    assert found == [_result(str(index)) if index % 2 == 0 else None for index in range(count)][::-1]
+
+
+def test_a_cache_of_the_older_layout_is_rebuilt(tmp_path):
+    path = tmp_path / "cache.sqlite"
+    with ResultCache(path, tool_version=VERSION) as cache:
+        cache.put(_key(b"plate"), _result("plate"))
+    raw = sqlite3.connect(path)
+    raw.execute("DROP TABLE file_hashes")
+    raw.execute("UPDATE meta SET value = '1' WHERE name = 'schema_version'")
+    raw.commit()
+    raw.close()
+    warnings = []
+    with ResultCache(path, tool_version=VERSION, on_warning=warnings.append) as cache:
+        assert cache.get(_key(b"plate")) is None and cache.count() == 0
+    assert len(warnings) == 1 and "rebuilding it empty" in warnings[0]

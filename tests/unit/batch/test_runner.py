@@ -200,3 +200,48 @@ def test_run_cached_files_serves_hits_and_computes_only_misses(tmp_path):
         calls.clear()
         (served,) = run_cached_files([FileJob(str(copy), "mm")], counting, settings_key=lambda job: "k", cache=cache)
         assert calls == [] and served.result == {"source": str(copy), "bytes": 3}
+
+
+def test_content_hashes_reads_only_files_whose_stamp_moved(tmp_path, monkeypatch):
+    import hashlib
+
+    from meshprops.batch import runner
+    from meshprops.batch.cache import ResultCache
+    from meshprops.io import hashing
+
+    monkeypatch.setattr(hashing, "SETTLED_NANOSECONDS", 0)  # the files count as long written
+    read = []
+
+    def spying(path):
+        read.append(os.path.basename(path))
+        return hashing.hash_and_stamp(path)
+
+    monkeypatch.setattr(runner, "hash_and_stamp", spying)
+    paths = []
+    for name in ("a.stl", "b.stl"):
+        (tmp_path / name).write_bytes(name.encode())
+        paths.append(str(tmp_path / name))
+    expected = ["sha256:" + hashlib.sha256(name.encode()).hexdigest() for name in ("a.stl", "b.stl")]
+    with ResultCache(tmp_path / "c.sqlite", tool_version="test") as cache:
+        assert runner.content_hashes(paths, cache) == expected and read == ["a.stl", "b.stl"]
+        read.clear()
+        assert runner.content_hashes(paths, cache) == expected and read == []  # both remembered
+        (tmp_path / "b.stl").write_bytes(b"B.stl")  # same size, new bytes: its stamp moves
+        hashes = runner.content_hashes(paths + [str(tmp_path / "gone.stl")], cache)
+        assert read == ["b.stl", "gone.stl"]
+        assert hashes[:2] == [expected[0], "sha256:" + hashlib.sha256(b"B.stl").hexdigest()]
+        assert isinstance(hashes[2], MeshFileError) and str(hashes[2]).endswith("gone.stl: no such file")
+
+
+def test_check_settings_key_of_no_options_is_that_of_the_default_options():
+    from meshprops.batch.runner import DEFAULT_CHECK_SETTINGS, FileJob, check_settings_key
+    from meshprops.validation.solid import SolidOptions
+
+    defaults = SolidOptions()
+    assert DEFAULT_CHECK_SETTINGS == (defaults.strict, defaults.weld_tolerance, defaults.volume_tolerance)
+    assert check_settings_key(FileJob("a.stl", "mm")) == check_settings_key(FileJob("a.stl", "mm", check_options=defaults))
+    assert check_settings_key(FileJob("a.stl", "mm")) != check_settings_key(FileJob("a.stl", "m"))
+    # -0.0 == 0.0 but is another setting written down: the memo of keys must not merge them
+    zero, negative_zero = (check_settings_key(FileJob("a.stl", "mm", check_options=SolidOptions(weld_tolerance=w))) for w in (0.0, -0.0))
+    assert zero != negative_zero
+    assert check_settings_key(FileJob("a.stl", "mm", check_options=SolidOptions(strict=True))) != check_settings_key(FileJob("a.stl", "mm"))

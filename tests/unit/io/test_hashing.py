@@ -35,3 +35,31 @@ def test_one_changed_byte_changes_the_hash(tmp_path):
 def test_a_missing_file_is_a_mesh_file_error(tmp_path):
     with pytest.raises(MeshFileError, match="no such file"):
         file_sha256(tmp_path / "missing.stl")
+
+
+def test_a_fresh_file_gives_no_stamp_to_remember(tmp_path):
+    # Written just now: a write within the file system's time resolution could keep the stamp.
+    from meshprops.io.hashing import hash_and_stamp
+
+    path = tmp_path / "part.stl"
+    path.write_bytes(b"abc")
+    assert hash_and_stamp(path) == (file_sha256(path), None)
+
+
+def test_a_settled_file_gives_its_stamp_and_a_write_moves_it(tmp_path, monkeypatch):
+    import os
+
+    from meshprops.io import hashing
+
+    monkeypatch.setattr(hashing, "SETTLED_NANOSECONDS", 0)  # as if written long ago
+    path = tmp_path / "part.stl"
+    path.write_bytes(b"abc")
+    digest, stamp = hashing.hash_and_stamp(path)
+    assert digest == "sha256:" + hashlib.sha256(b"abc").hexdigest()
+    assert stamp == hashing.FileStamp.of(os.stat(path)) == hashing.stamp_of(path)
+    assert stamp.text() == f"{stamp.device}:{stamp.inode}:{stamp.size}:{stamp.mtime_ns}:{stamp.ctime_ns}"
+    before = os.stat(path)
+    path.write_bytes(b"abd")  # the same size; setting the old times back leaves the change time moved
+    os.utime(path, ns=(before.st_atime_ns, before.st_mtime_ns))
+    assert hashing.stamp_of(path) != stamp
+    assert hashing.stamp_of(tmp_path / "gone.stl") is None
