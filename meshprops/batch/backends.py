@@ -47,6 +47,10 @@ BATCHES_PER_WORKER = 4
 #: Batches in flight per worker (submitted, not yet collected).
 IN_FLIGHT_PER_WORKER = 2
 
+#: Smallest batch of the shrinking tail: the last batches of a run get smaller (down to this),
+#: so that the workers finish together instead of one waiting on another's full batch.
+SMALLEST_TAIL_BATCH = 8
+
 #: Seconds to wait for a Dask scheduler to answer before the run fails.
 CONNECT_TIMEOUT_SECONDS = 20.0
 
@@ -135,14 +139,25 @@ class SerialBackend:
         self.close()
 
 
-def _ordered_windowed(submit, collect, cancel, task, items, prepare, batch_size, in_flight) -> Iterator[TaskOutcome]:
+def tail_batch_size(remaining: int, worker_count: int, batch_size: int) -> int:
+    """The size of the next batch when ``remaining`` items are left: ``batch_size`` while there
+    is plenty, then about a share of what is left per worker and batch in flight, never below
+    :data:`SMALLEST_TAIL_BATCH` (nor above ``batch_size``)."""
+    share = math.ceil(remaining / (max(1, worker_count) * (IN_FLIGHT_PER_WORKER + 1)))
+    return max(1, min(batch_size, max(SMALLEST_TAIL_BATCH, share)))
+
+
+def _ordered_windowed(
+    submit, collect, cancel, task, items, prepare, batch_size, in_flight, worker_count=1
+) -> Iterator[TaskOutcome]:
     """Submit batches lazily (at most ``in_flight`` outstanding) and yield outcomes in order."""
     pending: deque = deque()
     next_start = 0
     try:
         while next_start < len(items) or pending:
             while next_start < len(items) and len(pending) < in_flight:
-                batch = [prepare(item) for item in items[next_start : next_start + batch_size]]
+                size = tail_batch_size(len(items) - next_start, worker_count, batch_size)
+                batch = [prepare(item) for item in items[next_start : next_start + size]]
                 pending.append((next_start, submit(run_batch, task, batch)))
                 next_start += len(batch)
             start, future = pending.popleft()
@@ -215,7 +230,7 @@ class ProcessPoolBackend:
 
         return _ordered_windowed(
             pool.submit, collect, lambda future: future.cancel(), task, items, prepare, size,
-            self.worker_count * IN_FLIGHT_PER_WORKER,
+            self.worker_count * IN_FLIGHT_PER_WORKER, self.worker_count,
         )
 
     def close(self) -> None:
@@ -291,7 +306,7 @@ class DaskBackend:
 
         return _ordered_windowed(
             submit, collect, lambda future: future.cancel(), task, items, prepare, size,
-            self.worker_count * IN_FLIGHT_PER_WORKER,
+            self.worker_count * IN_FLIGHT_PER_WORKER, self.worker_count,
         )
 
     def close(self) -> None:

@@ -104,6 +104,19 @@ def test_batch_size_keeps_tasks_few_and_bounded():
     assert choose_batch_size(100_000, 400) == 63
 
 
+def test_the_last_batches_shrink_so_that_the_workers_finish_together():
+    sizes, remaining = [], 2000
+    while remaining:
+        size = min(backends.tail_batch_size(remaining, 2, backends.MAX_BATCH_SIZE), remaining)
+        sizes.append(size)
+        remaining -= size
+    assert sizes[0] == backends.MAX_BATCH_SIZE and sizes == sorted(sizes, reverse=True)
+    assert sizes[-2] == backends.SMALLEST_TAIL_BATCH  # a worker waits at most on a small batch at the end
+    assert len(sizes) <= 2000 // backends.MAX_BATCH_SIZE + 15  # a few more tasks, not many
+    assert backends.tail_batch_size(3, 2, 64) == backends.SMALLEST_TAIL_BATCH  # (only 3 are sent)
+    assert backends.tail_batch_size(500, 2, 5) == 5  # never above the batch size asked for
+
+
 def test_choose_backend():
     assert isinstance(choose_backend(jobs=1), SerialBackend)
     assert isinstance(choose_backend(jobs=4, item_count=1), SerialBackend)
