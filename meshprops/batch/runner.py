@@ -208,17 +208,48 @@ def run_cached_files(
     """Per-file records (plain JSON data, ``"source"`` first) for every job, in input order,
     served from ``cache`` where the file's content and the settings are unchanged.
 
+    :func:`iter_cached_files`, collected in a list; ``on_outcome`` is called with each
+    outcome as it arrives (for progress and streamed output).
+    """
+    outcomes = []
+    for outcome in iter_cached_files(
+        jobs, task, settings_key=settings_key, cache=cache, backend=backend, ship_content=ship_content,
+        before_computing=before_computing,
+    ):  # fmt: skip
+        if on_outcome is not None:
+            on_outcome(outcome)
+        outcomes.append(outcome)
+    return outcomes
+
+
+def iter_cached_files(
+    jobs: Sequence[FileJob],
+    task: Callable[[FileJob], dict],
+    *,
+    settings_key: Callable[[FileJob], str],
+    cache: ResultCache | None = None,
+    backend=None,
+    ship_content: bool = False,
+    before_computing: Callable[[], None] | None = None,
+) -> Iterator[FileOutcome]:
+    """Yield each job's :class:`FileOutcome` (its record: plain JSON data, ``"source"``
+    first) in input order, as soon as it and every job before it are done, served from
+    ``cache`` where the file's content and the settings are unchanged.
+
     ``task`` turns one job into its record; it runs only for files the cache does not hold
     (all of them without a cache). The stored record leaves out ``"source"``, so a copy of a
     file elsewhere is served under its own path. Errors are never cached. A file that cannot
     be hashed gets the same one-line error as reading it would give.
+
+    Memory stays bounded by the work in flight: computed records are held only while an
+    earlier file is still being computed, cached ones as their stored text until their turn.
 
     ``before_computing`` is called once, before the first task is sent, when there is any
     file to compute (never on a run that the cache serves whole): where to set up what only
     computing needs, before pool workers start.
     """
     keys: list[CacheKey | None] = [None] * len(jobs)
-    early: dict[int, FileOutcome] = {}
+    early: dict[int, FileOutcome | str] = {}  # an error, or the stored text of a hit
     if cache is not None:
         for index, (job, content_hash) in enumerate(zip(jobs, content_hashes([job.path for job in jobs], cache))):
             if isinstance(content_hash, MeshpropsError):
@@ -232,7 +263,7 @@ def run_cached_files(
                 continue
             text = next(texts)
             if text is not None:
-                early[index] = FileOutcome(jobs[index].path, result={"source": jobs[index].path, **json.loads(text)})
+                early[index] = text
     misses = [index for index in range(len(jobs)) if index not in early]
     computed = iter(())
     if misses:
@@ -245,22 +276,27 @@ def run_cached_files(
             backend=backend,
             prepare=with_content if ship_content else None,
         )
-    outcomes: list[FileOutcome] = []
     pending_writes: list[tuple[CacheKey, str]] = []
-    for index in range(len(jobs)):
-        outcome = early.get(index) or next(computed)
-        if cache is not None and index not in early and outcome.ok:
-            stored = {name: value for name, value in outcome.result.items() if name != "source"}
-            pending_writes.append((keys[index], json.dumps(stored, separators=(",", ":"))))
-            if len(pending_writes) >= CACHE_WRITE_BATCH:
-                cache.put_many(pending_writes)
-                pending_writes = []
-        if on_outcome is not None:
-            on_outcome(outcome)
-        outcomes.append(outcome)
-    if cache is not None and pending_writes:
-        cache.put_many(pending_writes)
-    return outcomes
+    try:
+        for index in range(len(jobs)):
+            served = early.pop(index, None)
+            if isinstance(served, str):
+                yield FileOutcome(jobs[index].path, result={"source": jobs[index].path, **json.loads(served)})
+                continue
+            if served is not None:
+                yield served
+                continue
+            outcome = next(computed)
+            if cache is not None and outcome.ok:
+                stored = {name: value for name, value in outcome.result.items() if name != "source"}
+                pending_writes.append((keys[index], json.dumps(stored, separators=(",", ":"))))
+                if len(pending_writes) >= CACHE_WRITE_BATCH:
+                    cache.put_many(pending_writes)
+                    pending_writes = []
+            yield outcome
+    finally:
+        if cache is not None and pending_writes:  # what was computed is kept, even if the run stops
+            cache.put_many(pending_writes)
 
 
 #: The ``check`` settings of :class:`~meshprops.validation.solid.SolidOptions` ``()`` (strict,
@@ -358,7 +394,7 @@ def measure_files(paths, options: MeasureOptions | None = None, *, on_invalid: s
 
 __all__ = [
     "FileJob", "FileOutcome", "MESH_EXTENSIONS", "check_every_file", "check_files", "check_inputs", "check_items",
-    "content_hashes",
+    "content_hashes", "iter_cached_files",
     "check_settings_key", "check_task", "expand_inputs", "iter_files", "measure_every_file", "measure_files",
     "measure_settings_key", "raise_first_error", "run_cached_files", "run_files", "with_content",
 ]  # fmt: skip

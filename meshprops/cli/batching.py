@@ -9,9 +9,10 @@ the same.
 
 from __future__ import annotations
 
+import contextlib
 import json
 import sys
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from pathlib import Path
 from typing import Annotated, Optional
 
@@ -54,21 +55,35 @@ def run_records(
     batch: BatchSettings,
     *,
     description: str,
-    collected: list[str] | None = None,
     before_computing: Callable[[], None] | None = None,
-):
-    """Run ``task`` over ``jobs`` as ``batch`` says; the :class:`FileOutcome` of each, in order.
+) -> list:
+    """Run ``task`` over ``jobs`` as ``batch`` says; the :class:`FileOutcome` of each, in order
+    (:func:`record_stream`, collected)."""
+    with record_stream(jobs, task, settings_key, batch, description=description, before_computing=before_computing) as outcomes:
+        return list(outcomes)
+
+
+@contextlib.contextmanager
+def record_stream(
+    jobs: Sequence,
+    task: Callable,
+    settings_key: Callable,
+    batch: BatchSettings,
+    *,
+    description: str,
+    before_computing: Callable[[], None] | None = None,
+) -> Iterator[Iterator]:
+    """Run ``task`` over ``jobs`` as ``batch`` says: within the block, an iterator of each
+    job's :class:`FileOutcome` in input order, as soon as it and every job before it are done
+    (the progress bar advances with it). Nothing but the work in flight is held, so a
+    ``--json-lines`` run of any size keeps no records.
 
     ``before_computing`` runs once before the first file is computed (not when the cache
     serves every file).
-
-    With ``--json-lines`` each record is written as a line as it arrives (to stdout, or
-    appended to ``collected`` for a report file written at the end) and each unreadable
-    file's error goes to stderr at its place.
     """
     from ..batch.backends import choose_backend
     from ..batch.cache import ResultCache
-    from ..batch.runner import run_cached_files
+    from ..batch.runner import iter_cached_files
     from ..output.progress import BatchProgress
     from ..version import __version__
 
@@ -77,44 +92,57 @@ def run_records(
     cache = None
     if batch.cache is not None:
         cache = ResultCache(batch.cache, tool_version=__version__, on_warning=lambda text: say(f"warning: {text}"))
-
-    def on_outcome(outcome) -> None:
-        bar.advance()
-        if not batch.json_lines:
-            return
-        if outcome.error is not None:
-            say(f"error: {outcome.error}")
-            return
-        emit_line(outcome.result, collected)
-
     try:
         with choose_backend(jobs=batch.jobs, scheduler=batch.scheduler, item_count=len(jobs)) as backend, BatchProgress(
             len(jobs), description=description
         ) as bar:
-            outcomes = run_cached_files(
+            outcomes = iter_cached_files(
                 jobs,
                 task,
                 settings_key=settings_key,
                 cache=cache,
                 backend=backend,
                 ship_content=batch.ship_content,
-                on_outcome=on_outcome,
                 before_computing=before_computing,
             )
+
+            def advancing():
+                for outcome in outcomes:
+                    bar.advance()
+                    yield outcome
+
+            try:
+                yield advancing()
+            finally:
+                outcomes.close()  # stopped early: pending work cancelled, what was computed cached
     finally:
         if cache is not None:
             cache.close()
-    return outcomes
 
 
-def emit_line(record: dict, collected: list[str] | None) -> None:
-    """One record as one line of JSON: to stdout at once, or into ``collected``."""
-    line = json.dumps(record, separators=(",", ":"), allow_nan=False) + "\n"
-    if collected is None:
-        sys.stdout.write(line)
-        sys.stdout.flush()
-    else:
-        collected.append(line)
+@contextlib.contextmanager
+def line_writer(output) -> Iterator[Callable[[dict], None]]:
+    """Within the block, ``emit(record)`` writes one record as one line of JSON: to stdout at
+    once (flushed), or into ``output``, which is replaced when the block ends (atomically:
+    never half-written; no line is held in memory)."""
+    if output is None:
+        yield emit_line
+        return
+    from ..io.atomic import atomic_stream
+
+    with atomic_stream(str(output)) as write:
+        yield lambda record: write(json_line(record))
+
+
+def json_line(record: dict) -> str:
+    """One record as one line of JSON text (compact; NaN refused)."""
+    return json.dumps(record, separators=(",", ":"), allow_nan=False) + "\n"
+
+
+def emit_line(record: dict) -> None:
+    """One record as one line of JSON on stdout, at once."""
+    sys.stdout.write(json_line(record))
+    sys.stdout.flush()
 
 
 def _quiet_cluster_client() -> None:

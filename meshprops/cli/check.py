@@ -31,6 +31,8 @@ from .batching import (
     JsonLines,
     Scheduler,
     ShipContent,
+    line_writer,
+    record_stream,
     run_records,
 )
 from .options import length_unit
@@ -130,24 +132,19 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
     work = [FileJob(path, unit, check_options=solid) for path, unit in pairs]
     if not work:  # an empty folder: say so rather than report nothing
         raise InputValueError("FILES", "at least one mesh file (folders are searched for .stl, .obj, .ply)", given)
-    units_of = {job.path: job.length_unit for job in work}
-    collected = [] if batch.json_lines and output is not None else None
-    outcomes = run_records(
-        work, check_record, check_settings_key, batch, description="check", collected=collected,
-        before_computing=announce_first_compile,
-    )  # fmt: skip
     if batch.json_lines:
-        records = [outcome.result for outcome in outcomes if outcome.ok]
-        if collected is not None:
-            write_report("".join(collected), output)
-    else:
-        # Every file reported: an unreadable one is its own entry (issue 9).
-        records = records_of(outcomes, lambda outcome: _unreadable_record(outcome, units_of[outcome.path]))
-        doc = plain_gate_fields(check_document_of(records, input_length_unit=units))
-        write_report(to_json(doc) if json_output else _check_table(doc), output)
-        if html_report is not None:  # the page draws each mesh: built here, from the files themselves
-            readable = [job for job, record in zip(work, records) if not is_unreadable(record)]  # nothing to draw
-            _write_html_report([check_task(job) for job in readable], html_report)
+        _check_lines(work, batch, output)
+    units_of = {job.path: job.length_unit for job in work}
+    outcomes = run_records(
+        work, check_record, check_settings_key, batch, description="check", before_computing=announce_first_compile
+    )
+    # Every file reported: an unreadable one is its own entry (issue 9).
+    records = records_of(outcomes, lambda outcome: _unreadable_record(outcome, units_of[outcome.path]))
+    doc = plain_gate_fields(check_document_of(records, input_length_unit=units))
+    write_report(to_json(doc) if json_output else _check_table(doc), output)
+    if html_report is not None:  # the page draws each mesh: built here, from the files themselves
+        readable = [job for job, record in zip(work, records) if not is_unreadable(record)]  # nothing to draw
+        _write_html_report([check_task(job) for job in readable], html_report)
     for record in records:
         line = first_error_line(record)
         if line is not None:
@@ -156,6 +153,37 @@ def _plain_check(given, units, batch, json_output, output, html_report, solid=No
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
     # warnings inform without blocking: a pre-commit hook refuses on any non-zero code
     raise typer.Exit(EXIT_INVALID if any(not record["valid"] for record in records) else EXIT_OK)
+
+
+def _check_lines(work, batch, output) -> None:
+    """``check --json-lines``: each file's record as one line as soon as it and the files before
+    it are done, an unreadable file's error on stderr at its place; no record is kept (only the
+    error lines that follow the run). Exits as the document run would."""
+    from ..batch.runner import check_settings_key
+    from ..output.plain_records import first_error_line
+    from ..output.records import check_record
+
+    error_lines: list[str] = []
+    exit_codes: list[int] = []
+    invalid = False
+    with record_stream(
+        work, check_record, check_settings_key, batch, description="check", before_computing=announce_first_compile
+    ) as outcomes, line_writer(output) as emit:
+        for outcome in outcomes:
+            if not outcome.ok:
+                say(f"error: {outcome.error}")
+                exit_codes.append(outcome.error.exit_code)
+                continue
+            emit(outcome.result)
+            invalid = invalid or not outcome.result["valid"]
+            line = first_error_line(outcome.result)
+            if line is not None:
+                error_lines.append(f"error: {outcome.result['source']}: {line}")
+    for line in error_lines:
+        say(line)
+    if exit_codes:
+        raise typer.Exit(max(exit_codes))
+    raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
 
 
 def _unreadable_record(outcome, length_unit: str) -> dict:

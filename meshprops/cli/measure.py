@@ -27,7 +27,8 @@ from .batching import (
     JsonLines,
     Scheduler,
     ShipContent,
-    emit_line,
+    line_writer,
+    record_stream,
     run_records,
 )
 from .options import (
@@ -140,36 +141,79 @@ def measure(
     if not work:  # an empty folder: say so rather than report nothing
         raise InputValueError("FILES", "at least one mesh file (folders are searched for .stl, .obj, .ply)", [str(f) for f in files])
     settings_key = measure_settings_key(options)
-    collected = [] if json_lines and output is not None else None
-    outcomes = run_records(work, MeasureRecord(options), lambda job: settings_key, batch, description="measure", collected=collected)
+    task = MeasureRecord(options)
     if json_lines:
-        records = [outcome.result for outcome in outcomes if outcome.ok]
-    else:  # every file reported: an unreadable one is its own body (issue 9)
-        records = records_of(outcomes, lambda outcome: unreadable_measure_record(outcome, units))
+        _measure_lines(work, task, lambda job: settings_key, batch, options, files, output, total, write_solid)
+    outcomes = run_records(work, task, lambda job: settings_key, batch, description="measure")
+    # every file reported: an unreadable one is its own body (issue 9)
+    records = records_of(outcomes, lambda outcome: unreadable_measure_record(outcome, units))
     summed = total_record(records, options, source=", ".join(str(path) for path in files)) if total and records else None
-    if json_lines:
-        if summed is not None and all(outcome.ok for outcome in outcomes):
-            emit_line(summed, collected)
-        if collected is not None:
-            write_report("".join(collected), output)
-    else:
-        doc = document(records, input_length_unit=units, total=summed)
-        text, notes = format_document(doc, chosen, inertial_form=inertial_form, display=display)
-        write_report(text, output)
-        for note in notes:
-            say(f"warning: {note}")
+    doc = document(records, input_length_unit=units, total=summed)
+    text, notes = format_document(doc, chosen, inertial_form=inertial_form, display=display)
+    write_report(text, output)
+    for note in notes:
+        say(f"warning: {note}")
     if any(record["density_assumed"] for record in records):
-        say("no --density given: assumed 1000 kg/m^3 (water); masses and inertias scale with density")
+        say(DENSITY_ASSUMED_NOTE)
     invalid = [record for record in records if not record["valid"]]
     if write_solid is not None and records and not invalid:
-        from ..measure.body import measure_file
-        from .solid_file import write_integrated_solid
-
-        write_integrated_solid(write_solid, measure_file(str(files[0]), options, on_invalid="report"))
+        _write_solid(write_solid, files, options)
     for record in invalid:
         say(f"error: {record['source']}: {first_error_line(record)}")
     if any(not outcome.ok for outcome in outcomes):
         raise typer.Exit(max(outcome.error.exit_code for outcome in outcomes if not outcome.ok))
+    raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
+
+
+DENSITY_ASSUMED_NOTE = "no --density given: assumed 1000 kg/m^3 (water); masses and inertias scale with density"
+
+
+def _write_solid(target, files, options) -> None:
+    from ..measure.body import measure_file
+    from .solid_file import write_integrated_solid
+
+    write_integrated_solid(target, measure_file(str(files[0]), options, on_invalid="report"))
+
+
+def _measure_lines(work, task, settings_key, batch, options, files, output, total, write_solid) -> None:
+    """``measure --json-lines``: each body's record as one line as soon as it and the files
+    before it are done, then the total's line (``--total``, when every file was read); no
+    record is kept but for the total. Exits as the document run would."""
+    from ..output.plain_records import first_error_line
+    from ..output.records import total_record
+
+    kept: list[dict] = []  # only for --total
+    error_lines: list[str] = []
+    exit_codes: list[int] = []
+    readable = invalid = 0
+    density_assumed = False
+    with record_stream(work, task, settings_key, batch, description="measure") as outcomes, line_writer(output) as emit:
+        for outcome in outcomes:
+            if not outcome.ok:
+                say(f"error: {outcome.error}")
+                exit_codes.append(outcome.error.exit_code)
+                continue
+            record = outcome.result
+            emit(record)
+            readable += 1
+            density_assumed = density_assumed or record["density_assumed"]
+            if not record["valid"]:
+                invalid += 1
+                error_lines.append(f"error: {record['source']}: {first_error_line(record)}")
+            if total:
+                kept.append(record)
+        if total and kept:
+            summed = total_record(kept, options, source=", ".join(str(path) for path in files))
+            if not exit_codes:
+                emit(summed)
+    if density_assumed:
+        say(DENSITY_ASSUMED_NOTE)
+    if write_solid is not None and readable and not invalid:
+        _write_solid(write_solid, files, options)
+    for line in error_lines:
+        say(line)
+    if exit_codes:
+        raise typer.Exit(max(exit_codes))
     raise typer.Exit(EXIT_INVALID if invalid else EXIT_OK)
 
 

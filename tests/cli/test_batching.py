@@ -285,3 +285,17 @@ def test_a_run_served_wholly_from_the_cache_loads_no_measuring_code(tmp_path):
     (folder / "frame" / "chassis.stl").touch()
     assert _run("check", folder, "--json", "--cache", database) == uncached
     assert len(_rows(database)) == 6
+
+
+@pytest.mark.parametrize("command", [["check"], ["measure", "--total", "--density", "2700"]])
+def test_json_lines_into_a_file_are_the_lines_on_stdout(tmp_path, command):
+    # -o FILE is written line by line into a temporary file and renamed at the end: the same
+    # bytes as on stdout, the same stderr lines and exit code, bad files included.
+    folder = _fleet(tmp_path / "fleet", broken=True)
+    code, stdout, stderr = _run(*command, folder, "--json-lines", "--jobs", "2")
+    assert code == 2 and stdout.count("\n") >= 6  # the torn file: exit 2, every other file a line
+    target = tmp_path / "out" / "records.jsonl"
+    target.parent.mkdir()
+    assert _run(*command, folder, "--json-lines", "--jobs", "2", "-o", target) == (code, "", stderr)
+    assert target.read_text(encoding="utf-8") == stdout
+    assert sorted(p.name for p in target.parent.iterdir()) == ["records.jsonl"]  # no temporary file left

@@ -245,3 +245,30 @@ def test_check_settings_key_of_no_options_is_that_of_the_default_options():
     zero, negative_zero = (check_settings_key(FileJob("a.stl", "mm", check_options=SolidOptions(weld_tolerance=w))) for w in (0.0, -0.0))
     assert zero != negative_zero
     assert check_settings_key(FileJob("a.stl", "mm", check_options=SolidOptions(strict=True))) != check_settings_key(FileJob("a.stl", "mm"))
+
+
+def test_iter_cached_files_hands_out_each_outcome_before_computing_the_next(tmp_path):
+    # Streaming (--json-lines): a record leaves as soon as it is done, so none need be held.
+    from meshprops.batch.cache import ResultCache
+    from meshprops.batch.runner import FileJob, iter_cached_files
+
+    jobs = []
+    for index in range(3):
+        (tmp_path / f"p{index}.stl").write_bytes(b"x" * (index + 1))
+        jobs.append(FileJob(str(tmp_path / f"p{index}.stl"), "mm"))
+    calls = []
+
+    def counting(job):
+        calls.append(job.path)
+        return _record_of(job)
+
+    for cache in (None, ResultCache(tmp_path / "c.sqlite", tool_version="test")):
+        calls.clear()
+        outcomes = iter_cached_files(jobs, counting, settings_key=lambda job: "k", cache=cache)
+        first = next(outcomes)
+        assert first.result == {"source": jobs[0].path, "bytes": 1} and calls == [jobs[0].path]
+        assert [outcome.result["bytes"] for outcome in outcomes] == [2, 3] and len(calls) == 3
+    # what the cached run computed was stored, even though it was read one by one
+    assert [o.result["bytes"] for o in iter_cached_files(jobs, counting, settings_key=lambda job: "k", cache=cache)] == [1, 2, 3]
+    assert len(calls) == 3
+    cache.close()

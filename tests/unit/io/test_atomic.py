@@ -77,3 +77,24 @@ def test_replacing_a_report_keeps_its_permissions(tmp_path):
     os.chmod(target, 0o640)
     write_atomically(str(target), "new")
     assert stat.S_IMODE(target.stat().st_mode) == 0o640 and target.read_text(encoding="utf-8") == "new"
+
+
+def test_a_stream_replaces_the_file_only_when_its_block_ends(tmp_path):
+    from meshprops.io.atomic import atomic_stream
+
+    target = tmp_path / "lines.jsonl"
+    target.write_text("old\n")
+    with atomic_stream(str(target)) as write:
+        write('{"source": "a.stl"}\n')
+        assert target.read_text() == "old\n"  # nothing replaced half-way
+        write('{"source": "b.stl"}\n')
+    assert target.read_text() == '{"source": "a.stl"}\n{"source": "b.stl"}\n'
+    with pytest.raises(KeyError):
+        with atomic_stream(str(target)) as write:
+            write("partial\n")
+            raise KeyError("stopped")
+    assert target.read_text() == '{"source": "a.stl"}\n{"source": "b.stl"}\n'
+    assert sorted(os.listdir(tmp_path)) == ["lines.jsonl"]  # the temporary file is gone
+    with pytest.raises(OutputFileError):
+        with atomic_stream(str(tmp_path / "missing" / "lines.jsonl")):
+            pass
