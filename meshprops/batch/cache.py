@@ -124,6 +124,10 @@ class CorruptCacheError(Exception):
     """Internal: the database file cannot be trusted (never escapes :class:`ResultCache`)."""
 
 
+class OlderLayoutError(CorruptCacheError):
+    """Internal: a sound cache of an older table layout (written by an older meshprops)."""
+
+
 class ResultCache:
     """Per-file results in an SQLite database, safe under concurrent runs.
 
@@ -153,6 +157,9 @@ class ResultCache:
         self._connection: sqlite3.Connection | None = None
         try:
             self._connection = self._open_checked()
+        except OlderLayoutError as why:
+            self._on_warning(f"{self.path}: cache has an older layout ({why}); rebuilding it empty")
+            self._rebuild()
         except CorruptCacheError as why:
             self._on_warning(f"{self.path}: cache is corrupt ({why}); rebuilding it empty")
             self._rebuild()
@@ -180,6 +187,8 @@ class ResultCache:
             tables = {row[0] for row in connection.execute("SELECT name FROM sqlite_master WHERE type = 'table'")}
             if not tables:
                 self._create_tables(connection)
+            elif tables == {"meta", "results"} and _layout_version(connection) == "1":
+                raise OlderLayoutError(f"layout version 1, this meshprops writes {SCHEMA_VERSION}")
             elif tables != _TABLES:
                 raise CorruptCacheError(f"unexpected tables {sorted(tables)}")
             else:
@@ -395,6 +404,11 @@ class ResultCache:
 
     def __exit__(self, *exception) -> None:
         self.close()
+
+
+def _layout_version(connection: sqlite3.Connection) -> str | None:
+    row = connection.execute("SELECT value FROM meta WHERE name = 'schema_version'").fetchone()
+    return None if row is None else str(row[0])
 
 
 def _sha256_text(text: str) -> str:
