@@ -254,7 +254,7 @@ try:
     main(sys.argv[2:])
 except SystemExit as done:
     code = done.code
-heavy = ("numpy", "numba", "meshprops.geometry.crossing_kernels", "meshprops.validation.checks",
+heavy = ("numpy", "numba", "meshprops.geometry.crossing_kernels", "meshprops.geometry.mesh_kernels", "meshprops.validation.checks",
          "meshprops.measure.body", "meshprops.gate.runner", "multiprocessing")
 with open(sys.argv[1], "w") as report:
     json.dump({"code": code, "loaded": [name for name in heavy if name in sys.modules]}, report)
