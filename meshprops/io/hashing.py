@@ -68,7 +68,8 @@ def stamp_of(path: str | os.PathLike) -> FileStamp | None:
 
 def hash_and_stamp(path: str | os.PathLike) -> tuple[str, FileStamp | None]:
     """The file's ``"sha256:<hex>"`` and the stamp it may be remembered by: ``None`` when the
-    file changed while it was read or had not been still for :data:`SETTLED_NANOSECONDS`.
+    file changed while it was read, had not been still for :data:`SETTLED_NANOSECONDS`, or its
+    file system keeps no times.
 
     Raises :class:`~meshprops.errors.MeshFileError` for a file that cannot be read.
     """
@@ -80,5 +81,9 @@ def hash_and_stamp(path: str | os.PathLike) -> tuple[str, FileStamp | None]:
         for block in iter(lambda: handle.read(_BLOCK_BYTES), b""):
             digest.update(block)
         after = FileStamp.of(os.fstat(handle.fileno()))
-    settled = before == after and started_ns - max(before.mtime_ns, before.ctime_ns) >= SETTLED_NANOSECONDS
+    settled = (
+        before == after
+        and min(before.mtime_ns, before.ctime_ns) > 0  # a file system that keeps no times: never remembered
+        and started_ns - max(before.mtime_ns, before.ctime_ns) >= SETTLED_NANOSECONDS
+    )
     return "sha256:" + digest.hexdigest(), (before if settled else None)

@@ -63,3 +63,15 @@ def test_a_settled_file_gives_its_stamp_and_a_write_moves_it(tmp_path, monkeypat
     os.utime(path, ns=(before.st_atime_ns, before.st_mtime_ns))
     assert hashing.stamp_of(path) != stamp
     assert hashing.stamp_of(tmp_path / "gone.stl") is None
+
+
+def test_a_file_system_without_times_gives_no_stamp(tmp_path, monkeypatch):
+    import os
+
+    from meshprops.io import hashing
+
+    monkeypatch.setattr(hashing, "SETTLED_NANOSECONDS", 0)
+    path = tmp_path / "part.stl"
+    path.write_bytes(b"abc")
+    os.utime(path, ns=(0, 0))  # modification time 0, as some network and FUSE file systems report
+    assert hashing.hash_and_stamp(path)[1] is None
