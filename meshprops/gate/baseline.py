@@ -51,7 +51,7 @@ import numpy as np
 
 from ..errors import BaselineError
 from ..io.atomic import write_atomically
-from .discovery import BASELINE_FILE_NAME
+from .discovery import BASELINE_FILE_NAME  # noqa: F401  (part of this module's API)
 from .rules import FAIL, PASS, RULE_BASELINE, Verdict
 
 BASELINE_FORMAT = "meshprops.baseline"
