@@ -35,19 +35,32 @@ _LAZY = {
 }
 
 
+#: Subpackages and ground modules, reachable as attributes (``meshprops.physics.mass``) as when
+#: this package imported them all.
+_SUBMODULES = frozenset(
+    {"batch", "cli", "errors", "gate", "geometry", "io", "materials", "measure", "output", "physics", "units",
+     "validation", "version"}
+)  # fmt: skip
+
+
 def __getattr__(name: str):
     """Every public name loads its module on first use (and is kept here after that)."""
-    if name in _LAZY:
-        import importlib
+    import importlib
 
+    if name in _LAZY:
         value = getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
         globals()[name] = value
         return value
+    if name in _SUBMODULES:
+        module = importlib.import_module(f".{name}", __name__)
+        for inner in {path for path in _LAZY.values() if path.startswith(f"{name}.")}:
+            importlib.import_module(f".{inner}", __name__)  # as reachable as when imported eagerly
+        return module
     raise AttributeError(f"module 'meshprops' has no attribute {name!r}")
 
 
 def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(_LAZY))
+    return sorted(set(globals()) | set(_LAZY) | _SUBMODULES)
 
 
 __all__ = [

@@ -9,18 +9,24 @@ that the light modules here (hashing, paths, atomic writing) can be imported wit
 _LAZY = {"load_mesh": "loaders", "Mesh": "mesh", "mesh_from_arrays": "mesh", "mesh_from_triangles": "mesh"}
 
 
-def __getattr__(name: str):
-    if name in _LAZY:
-        import importlib
+#: Modules that importing this package used to load, still reachable as attributes.
+_SUBMODULES = frozenset({"loaders", "mesh", "stl", "obj", "ply", "reading"})
 
+
+def __getattr__(name: str):
+    import importlib
+
+    if name in _LAZY:
         value = getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
         globals()[name] = value
         return value
+    if name in _SUBMODULES:
+        return importlib.import_module(f".{name}", __name__)
     raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 
 def __dir__() -> list[str]:
-    return sorted(set(globals()) | set(_LAZY))
+    return sorted(set(globals()) | set(_LAZY) | _SUBMODULES)
 
 
 __all__ = ["Mesh", "load_mesh", "mesh_from_arrays", "mesh_from_triangles"]
