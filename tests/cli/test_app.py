@@ -134,3 +134,40 @@ def test_every_command_usage_line_names_its_arguments_plainly():
         usage = CliRunner().invoke(app, [name, "--help"]).stdout.splitlines()[0]
         assert usage.startswith(f"Usage: meshprops {name} [OPTIONS]"), usage
         assert "{" not in usage and all(word == word.upper() for word in usage.split()[3:] if word != "[OPTIONS]"), usage
+
+
+_FAST_EXIT_SCRIPT = """
+import atexit, sys
+from pathlib import Path
+from meshprops.geometry.compiled import kernels
+kernels("mesh_kernels")  # the kernels are loaded: the process ends through os._exit
+marker = Path(sys.argv[1])
+atexit.register(lambda: marker.write_text("exit handlers ran"))
+sys.argv = ["meshprops", *sys.argv[2:]]
+from meshprops.cli.app import main
+main()
+print("never reached")
+"""
+
+
+@pytest.mark.parametrize("mesh, expected_code", [("cube", 0), ("open", EXIT_INVALID)])
+def test_the_console_entry_ends_fast_with_every_line_written_and_the_exit_handlers_run(tmp_path, mesh, expected_code):
+    import json
+    import subprocess
+    import sys
+
+    vertices, faces = shapes.box((10.0, 20.0, 30.0))
+    write_obj(tmp_path / "cube.obj", vertices, faces)
+    write_obj(tmp_path / "open.obj", vertices, faces[1:])
+    marker = tmp_path / "marker.txt"
+    done = subprocess.run(
+        [sys.executable, "-c", _FAST_EXIT_SCRIPT, str(marker), "measure", str(tmp_path / f"{mesh}.obj"), "--density", "1000", "--json"],
+        capture_output=True, text=True, timeout=120,
+    )  # fmt: skip
+    assert done.returncode == expected_code, done.stderr
+    assert "never reached" not in done.stdout
+    document = json.loads(done.stdout)  # the whole document arrived
+    assert document["bodies"][0]["valid"] is (expected_code == 0)
+    assert marker.read_text() == "exit handlers ran"
+    if expected_code:
+        assert "open_edges" in done.stderr
