@@ -20,7 +20,6 @@ import json
 import os
 from collections.abc import Callable, Iterable, Iterator, Sequence
 from dataclasses import dataclass, fields
-
 from typing import TYPE_CHECKING
 
 from ..errors import MeshpropsError

@@ -67,7 +67,6 @@ def balance(
         precession_rate=precession_rate,
     )
     from ..io.paths import refuse_output_over_inputs
-
     from ..measure.options import MeasureOptions
 
     refuse_output_over_inputs(output, [body])  # (a manifest's meshes are read, never written)

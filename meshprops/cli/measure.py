@@ -76,7 +76,6 @@ def measure(
     """Measure mesh files: volume, mass, centre of mass, inertia, principal axes, spin."""
     from ..batch.runner import FileJob, expand_inputs, measure_settings_key
     from ..measure.options import MeasureOptions
-    from ..physics.mass import check_density
     from ..output.records import (
         MeasureRecord,
         first_error_line,
@@ -86,6 +85,7 @@ def measure(
     )
     from ..output.renderers import choose_format, format_document
     from ..output.serialize import document
+    from ..physics.mass import check_density
 
     is_manifest = any(path.suffix.lower() == ".toml" for path in files)
     if not is_manifest:  # a manifest's meshes are known once it is parsed (below)

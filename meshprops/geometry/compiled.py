@@ -23,6 +23,9 @@ from dataclasses import dataclass
 #: the kernels are already loaded in the process or a batch asked for them:
 #: :func:`use_compiled_at_every_size`).
 COMPILED_FROM_FACES = 30_000
+#: From this many faces the kernels run on all cores (unless :func:`one_thread`); below, in one
+#: thread: starting the threads costs more than the work.
+PARALLEL_FROM_FACES = 20_000
 
 KERNEL_MODULES = ("meshprops.geometry.crossing_kernels", "meshprops.geometry.mesh_kernels")
 
@@ -67,6 +70,18 @@ def use_one_thread() -> None:
 def one_thread() -> bool:
     """Whether the kernels must run in one thread in this process (see :func:`use_one_thread`)."""
     return _policy["one_thread"]
+
+
+def all_cores(count: int) -> bool:
+    """Whether the kernels run on all cores for a mesh of ``count`` faces."""
+    return count >= PARALLEL_FROM_FACES and not one_thread()
+
+
+def thread_count() -> int:
+    """Threads numba's parallel kernels run on (numba is imported by then)."""
+    import numba
+
+    return int(numba.get_num_threads())
 
 
 def on_first_compile(callback) -> None:

@@ -34,16 +34,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .compiled import compiled_answers, one_thread
+from .compiled import all_cores, compiled_answers, one_thread, thread_count
 from .compiled import kernels as compiled_kernels
 
 #: A face is entered in at most about this many grid cells on average (the cell grows until it holds).
 ENTRIES_PER_FACE = 4.0
 #: The first cell edge over the median face size (see the module docstring).
 CELL_OVER_FACE = 2.0
-#: From this many faces the pair kernel runs on all cores; below, in one thread (its start-up costs
-#: more than the work).
-PARALLEL_FROM_FACES = 20_000
 #: A bucket holding more entries than this means the cells' low key bits collide in a pattern (a
 #: long bar along x, for instance); the buckets are then filled again with the keys scattered.
 #: Cells hold ~10-30 entries on a surface, and a fan around a pole a few thousand.
@@ -146,7 +143,7 @@ def find_crossings(
         pairs = _sorted_rows(np.sort(crossing_pairs_of(vertices[faces], faces), axis=1))
         return Crossings(pairs, empty, 0.0, 0, time.perf_counter() - started, coplanar_checked=False)
     kernels = compiled_kernels("crossing_kernels")
-    parallel = (count >= PARALLEL_FROM_FACES and not one_thread()) if _parallel is None else _parallel
+    parallel = all_cores(count) if _parallel is None else _parallel
     kernel = (lambda name: getattr(kernels, name)) if parallel else kernels.serial
     boxes = kernel("face_boxes")(vertices, faces)
     size, origin = _cell_size(boxes, vertices, kernel("cell_entry_total"))
@@ -156,7 +153,7 @@ def find_crossings(
     # About a bucket per eight entries: a cell holds ~10-30 entries on a surface, so few buckets hold
     # two cells, and the bucket starts stay small enough to be counted in cache.
     buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 8.0))))
-    parts = _thread_count() if parallel else 1
+    parts = thread_count() if parallel else 1
     grouped = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts, False)
     if int(np.diff(grouped[0]).max()) > PILED_BUCKET_ENTRIES:  # cells piled up in a few buckets: scatter them
         grouped = kernel("bucket_entries")(boxes, origin, size, dims, buckets, parts, True)
@@ -169,12 +166,6 @@ def find_crossings(
     crossing = _sorted_rows(pairs[kind == kernels.CROSSING])
     coplanar = _sorted_rows(pairs[kind == kernels.COPLANAR_OVERLAP])
     return Crossings(crossing, coplanar, size, entries, time.perf_counter() - started)
-
-
-def _thread_count() -> int:
-    import numba
-
-    return int(numba.get_num_threads())
 
 
 def _sorted_rows(pairs: np.ndarray) -> np.ndarray:

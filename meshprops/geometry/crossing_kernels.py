@@ -10,40 +10,22 @@ length unit; the tolerances are relative, so the unit does not matter.
 
 from __future__ import annotations
 
-import types
-
 import numpy as np
 from numba import njit, prange
+
+from .mesh_kernels import parallel_and_serial, serial_twin, serial_twins
 
 #: The kernels called from Python (their on-disk cache tells whether a first compile is due).
 ENTRY_POINTS = ("face_boxes", "cell_entry_total", "bucket_entries", "grid_pairs", "face_sides_winding")
 
-_SERIAL = {}
-
-
-def _parallel_and_serial(function):
-    """Compile ``function`` on all cores, and keep a one-thread twin in :func:`serial`.
-
-    For small meshes the twin answers: starting numba's threads costs more than the work, and
-    a process that has started them must not fork (a worker pool then spawns instead). The
-    twin is the same code under its own name, so numba caches the two apart.
-    """
-    twin = types.FunctionType(function.__code__, function.__globals__, function.__name__ + "_serial",
-                              function.__defaults__, function.__closure__)  # fmt: skip
-    twin.__qualname__ = function.__qualname__ + "_serial"
-    twin.__doc__ = function.__doc__
-    _SERIAL[function.__name__] = njit(cache=True)(twin)
-    return njit(cache=True, parallel=True)(function)
-
-
 def serial(name: str):
-    """The one-thread twin of the parallel kernel ``name`` (same answers, same order)."""
-    return _SERIAL[name]
+    """The one-thread twin of this module's parallel kernel ``name`` (same answers, same order)."""
+    return serial_twin(__name__, name)
 
 
 def dispatchers() -> list:
     """Every kernel called from Python, one-thread twins included (for the cache check)."""
-    return [globals()[name] for name in ENTRY_POINTS] + list(_SERIAL.values())
+    return [globals()[name] for name in ENTRY_POINTS] + serial_twins(__name__)
 
 
 #: Result codes of :func:`pair_relation`.
@@ -216,7 +198,7 @@ def _up32(x):
     return np.nextafter(y, np.float32(np.inf)) if y < x else y
 
 
-@_parallel_and_serial
+@parallel_and_serial
 def face_boxes(vertices, faces):
     """(F, 6) float32 box of each face: lowest x, y, z then highest x, y, z, rounded outwards.
 
@@ -240,7 +222,7 @@ def _cell_of(value, origin, cell_size):
     return np.int64(np.floor((np.float64(value) - origin) / cell_size))
 
 
-@_parallel_and_serial
+@parallel_and_serial
 def cell_entry_total(boxes, origin, cell_size):
     """Number of (face, cell) entries: grid cells overlapped by each face's box, summed."""
     total = 0
@@ -271,7 +253,7 @@ def _cell_range(boxes, face, origin, cell_size):
             _cell_of(boxes[face, 4], origin[1], cell_size), _cell_of(boxes[face, 5], origin[2], cell_size))  # fmt: skip
 
 
-@_parallel_and_serial
+@parallel_and_serial
 def bucket_entries(boxes, origin, cell_size, dims, bucket_count, parts, scatter):
     """Every (face, cell) entry, grouped by a hash of its cell into ``bucket_count`` buckets (a power of two).
 
@@ -409,7 +391,7 @@ def _cell_pairs(c, member_keys, starts, members, member_low_x, vertices, faces, 
     return found
 
 
-@_parallel_and_serial
+@parallel_and_serial
 def grid_pairs(member_keys, starts, members, member_low_x, vertices, faces, boxes, origin, cell_size, dims, tolerance,
                skip_shared):  # fmt: skip
     """Every pair of faces that cross (kind 1) or overlap coplanar (kind 2), each once.
@@ -443,7 +425,7 @@ def grid_pairs(member_keys, starts, members, member_low_x, vertices, faces, boxe
     return first, second, kind
 
 
-@_parallel_and_serial
+@parallel_and_serial
 def face_sides_winding(corners, queries, axes):
     """Winding number of the closed surface just outside each query face.
 

@@ -9,13 +9,42 @@ each vertex's outgoing edges (a few nanoseconds an element).
 
 from __future__ import annotations
 
+import types
+
 import numpy as np
-from numba import njit
+from numba import njit, prange
 
 #: The kernels called from Python (their on-disk cache tells whether a first compile is due).
 ENTRY_POINTS = ("weld_rows", "closed_and_oriented", "has_duplicate_faces", "thin_face_candidates")
 
 _EMPTY = np.int32(-1)
+
+_SERIAL: dict = {}
+
+
+def parallel_and_serial(function):
+    """Compile ``function`` on all cores, and keep a one-thread twin (:func:`serial_twin`).
+
+    For small meshes and in pool workers the twin answers: starting numba's threads costs more
+    than the work, and a worker forked from a process whose OpenMP threads started must not
+    start its own. The twin is the same code under its own name, so numba caches the two apart.
+    """
+    twin = types.FunctionType(function.__code__, function.__globals__, function.__name__ + "_serial",
+                              function.__defaults__, function.__closure__)  # fmt: skip
+    twin.__qualname__ = function.__qualname__ + "_serial"
+    twin.__doc__ = function.__doc__
+    _SERIAL[(function.__module__, function.__name__)] = njit(cache=True)(twin)
+    return njit(cache=True, parallel=True)(function)
+
+
+def serial_twin(module: str, name: str):
+    """The one-thread twin of the parallel kernel ``name`` of kernel module ``module``."""
+    return _SERIAL[(module, name)]
+
+
+def serial_twins(module: str) -> list:
+    """The one-thread twins of ``module``'s parallel kernels."""
+    return [dispatcher for (owner, _), dispatcher in _SERIAL.items() if owner == module]
 
 
 @njit(cache=True, inline="always")
@@ -108,22 +137,24 @@ def _outgoing(face_vertices, vertex_count):
     return starts, heads
 
 
-@njit(cache=True)
+@parallel_and_serial
 def closed_and_oriented(face_vertices, vertex_count):
     """True when every directed edge occurs exactly once and so does its reverse.
 
     The answer of :func:`meshprops.geometry.topology.is_closed_and_oriented`: for each
     half-edge ``a -> b``, ``b`` appears once among ``a``'s heads and ``a`` once among
     ``b``'s (a vertex has a handful of edges, so each look-up is a short scan). A face
-    that repeats a vertex has a null edge ``a -> a`` and fails.
+    that repeats a vertex has a null edge ``a -> a`` and fails. Parallel over vertices.
     """
     starts, heads = _outgoing(face_vertices, vertex_count)
-    for a in range(vertex_count):
+    failed = 0
+    for a in prange(vertex_count):
         for p in range(starts[a], starts[a + 1]):
             b = heads[p]
             if b == a or _edges_to(heads, starts, a, b) != 1 or _edges_to(heads, starts, b, a) != 1:
-                return False
-    return True
+                failed += 1
+                break
+    return failed == 0
 
 
 @njit(cache=True, inline="always")
@@ -214,6 +245,11 @@ def thin_face_candidates(positions, face_vertices, limit, resolution):
     return np.flatnonzero(found)
 
 
+def serial(name: str):
+    """The one-thread twin of this module's parallel kernel ``name``."""
+    return serial_twin(__name__, name)
+
+
 def dispatchers() -> list:
-    """Every kernel called from Python (for the cache check)."""
-    return [globals()[name] for name in ENTRY_POINTS]
+    """Every kernel called from Python, one-thread twins included (for the cache check)."""
+    return [globals()[name] for name in ENTRY_POINTS] + serial_twins(__name__)

@@ -9,7 +9,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .compiled import compiled_answers, kernels
+from .compiled import all_cores, compiled_answers, kernels
 from .welding import Topology, index_dtype
 
 
@@ -39,7 +39,9 @@ def is_closed_and_oriented(topology: Topology, *, force_compiled: bool = False) 
     """
     faces = topology.face_vertices
     if force_compiled or compiled_answers(faces.shape[0]):
-        return bool(kernels("mesh_kernels").closed_and_oriented(np.ascontiguousarray(faces), topology.id_bound))
+        compiled = kernels("mesh_kernels")
+        test = compiled.closed_and_oriented if all_cores(faces.shape[0]) else compiled.serial("closed_and_oriented")
+        return bool(test(np.ascontiguousarray(faces), topology.id_bound))
     keys = _edge_keys(topology.face_vertices, topology.id_bound).reshape(-1)
     if keys.size % 2:
         return False

@@ -32,5 +32,6 @@ def warm_up() -> None:
         for index_type in (np.int32, np.int64):
             topology = weld_compiled(rows.astype(dtype), index_type=index_type)
             is_closed_and_oriented(topology, force_compiled=True)
+            kernels("mesh_kernels").closed_and_oriented(topology.face_vertices, topology.id_bound)  # all cores
             duplicate_face_groups(topology, force_compiled=True)
             kernels("mesh_kernels").thin_face_candidates(cube, cube_faces.astype(index_type), 0.0, 1e-16)

@@ -234,7 +234,11 @@ def test_content_hashes_reads_only_files_whose_stamp_moved(tmp_path, monkeypatch
 
 
 def test_check_settings_key_of_no_options_is_that_of_the_default_options():
-    from meshprops.batch.runner import DEFAULT_CHECK_SETTINGS, FileJob, check_settings_key
+    from meshprops.batch.runner import (
+        DEFAULT_CHECK_SETTINGS,
+        FileJob,
+        check_settings_key,
+    )
     from meshprops.validation.solid import SolidOptions
 
     defaults = SolidOptions()

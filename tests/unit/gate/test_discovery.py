@@ -7,7 +7,12 @@ import subprocess
 import sys
 
 from meshprops.gate import config
-from meshprops.gate.discovery import BASELINE_FILE_NAME, baseline_path, find_config, gate_files
+from meshprops.gate.discovery import (
+    BASELINE_FILE_NAME,
+    baseline_path,
+    find_config,
+    gate_files,
+)
 
 
 def test_nothing_in_force_in_an_empty_folder(tmp_path):

@@ -72,6 +72,9 @@ def _variants():
 def test_the_compiled_edge_and_duplicate_tests_answer_as_numpy_does(name, vertices, faces, monkeypatch):
     topology = weld_exact(mesh_from_arrays(vertices, faces))
     compiled_closed = is_closed_and_oriented(topology, force_compiled=True)
+    kernel = compiled.kernels("mesh_kernels")
+    for test in (kernel.closed_and_oriented, kernel.serial("closed_and_oriented")):  # all cores, one thread
+        assert test(topology.face_vertices, topology.id_bound) == compiled_closed
     compiled_groups = duplicate_face_groups(topology, force_compiled=True)
     monkeypatch.setitem(compiled._policy, "numpy_only", True)
     assert compiled_closed == is_closed_and_oriented(topology)
