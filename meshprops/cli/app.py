@@ -133,10 +133,6 @@ def _run(argv: list[str] | None) -> int:
     return status if isinstance(status, int) else EXIT_OK
 
 
-#: Modules whose presence makes the interpreter's ordinary shutdown slow (see :func:`leave`).
-SLOW_TO_TEAR_DOWN = ("meshprops.geometry.crossing_kernels", "meshprops.geometry.mesh_kernels")
-
-
 def leave(code: int, *, fast: bool) -> None:
     """End with exit code ``code``.
 
@@ -146,7 +142,9 @@ def leave(code: int, *, fast: bool) -> None:
     temporary folders removed), flushes the standard streams and ends at once; every file
     meshprops writes is complete and closed before this point.
     """
-    if fast and any(name in sys.modules for name in SLOW_TO_TEAR_DOWN):
+    from ..geometry.compiled import kernels_loaded  # the standard library only: no numpy, no numba
+
+    if fast and kernels_loaded():
         import atexit
         import os
 
@@ -155,6 +153,6 @@ def leave(code: int, *, fast: bool) -> None:
             try:
                 stream.flush()
             except (BrokenPipeError, OSError, ValueError):
-                code = code or EXIT_OK
+                pass  # a closed pipe or stream: nothing more can reach its reader
         os._exit(code)
     sys.exit(code)

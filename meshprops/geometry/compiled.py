@@ -34,6 +34,11 @@ _notice = {"callback": None, "given": False}
 _policy = {"every_size": False, "numpy_only": False, "one_thread": False}
 
 
+def kernels_loaded() -> bool:
+    """Whether any kernel module is loaded in this process (numba with it)."""
+    return any(name in sys.modules for name in KERNEL_MODULES)
+
+
 def compiled_answers(count: int) -> bool:
     """Whether the compiled kernels answer for a mesh of ``count`` faces (see :data:`COMPILED_FROM_FACES`)."""
     if _policy["numpy_only"]:
@@ -41,7 +46,7 @@ def compiled_answers(count: int) -> bool:
     return (
         count >= COMPILED_FROM_FACES
         or _policy["every_size"]
-        or any(name in sys.modules for name in KERNEL_MODULES)  # already loaded: no import to pay
+        or kernels_loaded()  # no import left to pay
     )
 
 

@@ -77,9 +77,9 @@ class Crossings:
         return np.unique(self.pairs)
 
 
-def _cell_size(boxes: np.ndarray, vertices: np.ndarray, entry_total) -> tuple[float, np.ndarray]:
-    """Cell edge and grid origin (see the module docstring); ``boxes`` from the ``face_boxes`` kernel,
-    ``entry_total`` the ``cell_entry_total`` kernel."""
+def _cell_size(boxes: np.ndarray, vertices: np.ndarray, entry_total) -> tuple[float, np.ndarray, int]:
+    """Cell edge, grid origin and the number of (face, cell) entries they give (see the module
+    docstring); ``boxes`` from the ``face_boxes`` kernel, ``entry_total`` the ``cell_entry_total`` kernel."""
     bottom = np.array([vertices[:, axis].min() for axis in range(3)])
     step = max(1, boxes.shape[0] // 65536)  # the median of a sample is as good a start and 10x cheaper
     sample = boxes[::step].astype(np.float64)
@@ -90,10 +90,10 @@ def _cell_size(boxes: np.ndarray, vertices: np.ndarray, entry_total) -> tuple[fl
     size = max(size, span * 2.0**-20, 1e-300)  # at most 2^20 cells a side: linear keys stay within int64
     origin = bottom - 0.5 * size
     budget = ENTRIES_PER_FACE * boxes.shape[0] + 64
-    while entry_total(boxes, origin, size) > budget:
+    while (entries := int(entry_total(boxes, origin, size))) > budget:
         size *= 1.5
         origin = bottom - 0.5 * size
-    return size, origin
+    return size, origin, entries
 
 
 def find_crossings(
@@ -146,10 +146,9 @@ def find_crossings(
     parallel = all_cores(count) if _parallel is None else _parallel
     kernel = (lambda name: getattr(kernels, name)) if parallel else kernels.serial
     boxes = kernel("face_boxes")(vertices, faces)
-    size, origin = _cell_size(boxes, vertices, kernel("cell_entry_total"))
+    size, origin, entries = _cell_size(boxes, vertices, kernel("cell_entry_total"))
     top = np.array([float(boxes[:, 3 + axis].max()) for axis in range(3)])  # boxes are rounded outwards
     dims = np.maximum(np.floor((top - origin) / size).astype(np.int64) + 2, 1)
-    entries = int(kernel("cell_entry_total")(boxes, origin, size))
     # About a bucket per eight entries: a cell holds ~10-30 entries on a surface, so few buckets hold
     # two cells, and the bucket starts stay small enough to be counted in cache.
     buckets = 1 << max(4, int(np.ceil(np.log2(max(entries, 1) / 8.0))))
