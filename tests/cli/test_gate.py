@@ -7,32 +7,17 @@ import shutil
 
 import jsonschema
 import pytest
+from parts import write_box as _box
 from paths import ROOT, TESTS
 from typer.testing import CliRunner
 
 from meshprops.cli import app
-from meshprops.geometry import shapes
-from meshprops.io import writers
 
 runner = CliRunner()
 SCHEMAS = ROOT / "meshprops" / "schema"
 CHECK_SCHEMA = json.loads((SCHEMAS / "check.schema.json").read_text())
 WARNING_PART = TESTS / "meshes" / "warnings" / "collapsed_faces__plate-with-collapsed-face.stl"
 OPEN_PART = TESTS / "meshes" / "invalid" / "open_edges__chassis-plate-missing-face.stl"
-
-
-def _box(path, size, unit_scale=1.0):
-    path.parent.mkdir(parents=True, exist_ok=True)
-    vertices, faces = shapes.box(size, center=[s / 2 for s in size])
-    writers.write_binary_stl(path, vertices[faces] * unit_scale)
-
-
-@pytest.fixture
-def folder(tmp_path, monkeypatch):
-    monkeypatch.chdir(tmp_path)
-    _box(tmp_path / "exports" / "plate.stl", (100.0, 60.0, 10.0))  # 60 cm^3
-    _box(tmp_path / "exports" / "sub" / "bracket.stl", (40.0, 20.0, 5.0))  # 4 cm^3
-    return tmp_path
 
 
 def _check(*args):
